@@ -1,0 +1,10 @@
+import type { EntityManager } from '@mikro-orm/core';
+import { Seeder } from '@mikro-orm/seeder';
+import { DemoAccountsSeeder } from './DemoAccountsSeeder';
+
+/** The invented demo that `npm start` loads. Every seeder it calls is idempotent. */
+export class DatabaseSeeder extends Seeder {
+	async run(em: EntityManager): Promise<void> {
+		return this.call(em, [DemoAccountsSeeder]);
+	}
+}

@@ -1,0 +1,16 @@
+import { defineEntity, type InferEntity } from '@mikro-orm/core';
+import { User } from './user.entity';
+
+export const Session = defineEntity({
+	name: 'Session',
+	tableName: 'app_session',
+	properties: (p) => ({
+		/** sha256 of the session token, hex; the token itself only ever lives in the cookie. */
+		id: p.string().length(64).primary(),
+		user: p.manyToOne(User).deleteRule('cascade'),
+		expiresAt: p.datetime().index(),
+		createdAt: p.datetime().onCreate(() => new Date())
+	})
+});
+
+export type SessionEntity = InferEntity<typeof Session>;

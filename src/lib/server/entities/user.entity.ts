@@ -1,0 +1,25 @@
+import { defineEntity, type InferEntity } from '@mikro-orm/core';
+
+export const ROLES = ['reader', 'curator', 'reviewer', 'admin'] as const;
+export type Role = (typeof ROLES)[number];
+
+export const User = defineEntity({
+	name: 'User',
+	tableName: 'app_user',
+	properties: (p) => ({
+		id: p
+			.uuid()
+			.primary()
+			.onCreate(() => crypto.randomUUID()),
+		email: p.string().length(320).unique(),
+		displayName: p.string().length(200),
+		affiliation: p.string().length(300).nullable(),
+		orcid: p.string().length(19).nullable(),
+		// Never leaves the server: DTO mappers whitelist fields.
+		passwordHash: p.text().nullable(),
+		roles: p.array<Role>().default('{reader}'),
+		createdAt: p.datetime().onCreate(() => new Date())
+	})
+});
+
+export type UserEntity = InferEntity<typeof User>;
