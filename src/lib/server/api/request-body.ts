@@ -1,0 +1,56 @@
+import type { z } from 'zod';
+import { fail, fieldErrors } from './errors';
+
+/**
+ * Reads a request body up to `maxBytes`, answering 413 before buffering more. The Content-Length
+ * header is checked first, then the bytes actually received (a client may lie or stream).
+ */
+export async function readBodyWithLimit(request: Request, maxBytes: number): Promise<Uint8Array> {
+	const declared = Number(request.headers.get('content-length') ?? NaN);
+	if (Number.isFinite(declared) && declared > maxBytes) tooLarge(maxBytes);
+	if (!request.body) return new Uint8Array();
+	const chunks: Uint8Array[] = [];
+	let received = 0;
+	const reader = request.body.getReader();
+	for (;;) {
+		const { done, value } = await reader.read();
+		if (done) break;
+		received += value.byteLength;
+		if (received > maxBytes) {
+			await reader.cancel();
+			tooLarge(maxBytes);
+		}
+		chunks.push(value);
+	}
+	const body = new Uint8Array(received);
+	let offset = 0;
+	for (const chunk of chunks) {
+		body.set(chunk, offset);
+		offset += chunk.byteLength;
+	}
+	return body;
+}
+
+function tooLarge(maxBytes: number): never {
+	fail(413, `The request body is larger than this endpoint accepts (${maxBytes} bytes).`);
+}
+
+/** Reads, size-limits and validates a JSON body against a zod schema (422 with field errors). */
+export async function readJsonBody<T extends z.ZodType>(
+	request: Request,
+	schema: T,
+	maxBytes: number
+): Promise<z.infer<T>> {
+	const type = request.headers.get('content-type') ?? '';
+	if (!/^application\/([a-z.+-]*\+)?json\b/i.test(type)) fail(415, 'Send the body as application/json.');
+	const bytes = await readBodyWithLimit(request, maxBytes);
+	let value: unknown;
+	try {
+		value = JSON.parse(new TextDecoder().decode(bytes));
+	} catch (cause) {
+		fail(400, `The body is not valid JSON: ${(cause as Error).message}`);
+	}
+	const parsed = schema.safeParse(value);
+	if (!parsed.success) fail(422, 'The request body does not match the schema.', fieldErrors(parsed.error));
+	return parsed.data;
+}

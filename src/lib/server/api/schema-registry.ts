@@ -1,0 +1,42 @@
+import { z } from 'zod';
+
+/**
+ * Every request and response schema of the public API is registered here once, with a stable id, so the
+ * OpenAPI document can be generated from the same schemas that validate traffic.
+ */
+export interface ApiSchemaMeta {
+	id: string;
+	description?: string;
+}
+
+export const apiSchemas = z.registry<ApiSchemaMeta>();
+
+export function registerApiSchema<T extends z.ZodType>(schema: T, meta: ApiSchemaMeta): T {
+	apiSchemas.add(schema, meta);
+	return schema;
+}
+
+export const FieldErrorSchema = registerApiSchema(z.object({ path: z.string(), message: z.string() }), {
+	id: 'FieldError',
+	description: 'One problem with one part of the request.'
+});
+
+export const ProblemSchema = registerApiSchema(
+	z.object({
+		type: z.string(),
+		title: z.string(),
+		status: z.number().int(),
+		detail: z.string().optional(),
+		instance: z.string().optional(),
+		errors: z.array(FieldErrorSchema).optional()
+	}),
+	{ id: 'Problem', description: 'RFC 9457 problem details (application/problem+json).' }
+);
+
+export const HealthSchema = registerApiSchema(
+	z.object({
+		status: z.enum(['ok', 'ready', 'not_ready']),
+		checks: z.record(z.string(), z.object({ ok: z.boolean(), detail: z.string().optional() })).optional()
+	}),
+	{ id: 'Health', description: 'Liveness or readiness of the service.' }
+);
