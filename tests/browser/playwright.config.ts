@@ -1,0 +1,42 @@
+import { defineConfig } from '@playwright/test';
+
+const port = Number(process.env.CANDLEBOOK_TEST_PORT ?? 4173);
+const origin = `http://127.0.0.1:${port}`;
+
+/** Browser tests drive Debian's Chromium against the production build; no browser is ever downloaded. */
+export default defineConfig({
+	testDir: '.',
+	testMatch: '**/*.test.ts',
+	fullyParallel: false,
+	workers: 1,
+	retries: 0,
+	timeout: 30_000,
+	forbidOnly: true,
+	reporter: [['list'], ['./summary-reporter.ts']],
+	outputDir: '../../test-results',
+	use: {
+		baseURL: origin,
+		launchOptions: {
+			executablePath: '/usr/bin/chromium',
+			args: [
+				'--headless',
+				'--no-sandbox',
+				'--disable-gpu',
+				'--disable-quic',
+				'--no-first-run',
+				'--disable-background-networking',
+				'--disable-component-update',
+				'--disable-sync',
+				'--disable-dev-shm-usage'
+			]
+		}
+	},
+	webServer: {
+		command: 'node build/index.js',
+		cwd: '../..',
+		url: `${origin}/healthz`,
+		reuseExistingServer: false,
+		timeout: 60_000,
+		env: { HOST: '127.0.0.1', PORT: String(port), ORIGIN: origin, BODY_SIZE_LIMIT: '64M' }
+	}
+});
