@@ -1,0 +1,188 @@
+/**
+ * A host galaxy's distance modulus from its Cepheids.
+ *
+ *   w_i = 1 / (σ_phot,i² + σ_red,i² + σ_int² + (γ σ_[Fe/H],i)²),   μ_host = Σ w_i μ0,i / Σ w_i,
+ *   σ_stat = 1/√Σw_i,   σ_sys² = gᵀΣg at the host's mean log P (and mean [Fe/H]) + Σ σ_anchor,k²,
+ *   σ_total² = σ_stat² + σ_sys²
+ * (inverse-variance weighted mean; the relation's coefficient error and anchor systematics are the
+ * same for every star of the host, so they are added once and never averaged down).
+ */
+import type { StarDistance } from './apply';
+import { coefficientVariance } from './apply';
+import { measuredDistanceFromModulus } from './units';
+import { CalibrationInputError, type CalibrationWarning, type InputIssue, type Measured, type Relation } from './types';
+
+/** A systematic shared by every star of the host, e.g. the anchor distance or the parallax zero point. */
+export interface SystematicTerm {
+	/** Stable id, e.g. `anchor_distance`, `parallax_zero_point`, `extinction_law`. */
+	name: string;
+	/** 1σ in magnitudes of distance modulus. */
+	error: number;
+}
+
+export interface HostDistanceOptions {
+	/** Reject stars with |standardized residual| above this; null disables clipping. Default 3. */
+	clipSigma?: number | null;
+	/** Default 10. */
+	maxIterations?: number;
+	/** Anchor and other shared systematics, each added once in quadrature. */
+	systematics?: readonly SystematicTerm[];
+	/** Fewest stars to keep; clipping stops rather than go below it. Default 2. */
+	minStars?: number;
+}
+
+export interface HostRejectedStar {
+	star: string;
+	reason: 'sigma_clip';
+	/** (μ0,i − μ_host) / σ_i against the final mean. */
+	standardizedResidual: number;
+}
+
+export interface HostDistance {
+	mu0: { value: number; statistical: number; systematic: number; total: number };
+	distanceMpc: Measured;
+	nUsed: number;
+	used: string[];
+	rejected: HostRejectedStar[];
+	/** Weighted mean log P of the stars used; the coefficient term is evaluated there. */
+	meanLogPeriod: number;
+	meanFeh: number | null;
+	systematicTerms: SystematicTerm[];
+	/** Σ w_i (μ0,i − μ_host)² / (n − 1), a check of the per-star errors. */
+	reducedChiSquare: number | null;
+	iterations: number;
+	warnings: CalibrationWarning[];
+}
+
+/** Per-star variance that is independent between stars (everything but the coefficient term). */
+function randomVariance(star: StarDistance): number {
+	const { photometric, reddening, intrinsic, metallicity } = star.errorBudget;
+	return photometric ** 2 + reddening ** 2 + intrinsic ** 2 + metallicity ** 2;
+}
+
+function weightedMean(values: Float64Array, weights: Float64Array, keep: Uint8Array): number {
+	let sw = 0;
+	let swx = 0;
+	for (let i = 0; i < values.length; i++) {
+		if (!keep[i]) continue;
+		sw += weights[i];
+		swx += weights[i] * values[i];
+	}
+	return swx / sw;
+}
+
+/** Combines the Cepheids of one host (results of `applyRelation` with the same relation). */
+export function combineHostDistance(
+	relation: Relation,
+	stars: readonly StarDistance[],
+	options: HostDistanceOptions = {}
+): HostDistance {
+	const clipSigma = options.clipSigma === undefined ? 3 : options.clipSigma;
+	const maxIterations = options.maxIterations ?? 10;
+	const minStars = Math.max(1, options.minStars ?? 2);
+	const systematics = [...(options.systematics ?? [])];
+	const issues: InputIssue[] = stars.flatMap((star): InputIssue[] =>
+		randomVariance(star) > 0 && Number.isFinite(star.mu0.value)
+			? []
+			: [{ star: star.id, field: 'mu0', message: 'needs a finite μ0 and a positive random error' }]
+	);
+	if (stars.length === 0) issues.push({ star: null, field: 'stars', message: 'no stars to combine' });
+	for (const term of systematics) {
+		if (!(term.error >= 0) || !Number.isFinite(term.error)) {
+			issues.push({ star: null, field: `systematics.${term.name}`, message: 'error must be finite and ≥ 0' });
+		}
+	}
+	if (issues.length > 0) throw new CalibrationInputError(issues);
+
+	const n = stars.length;
+	const mu = Float64Array.from(stars, (star) => star.mu0.value);
+	const sigma = Float64Array.from(stars, (star) => Math.sqrt(randomVariance(star)));
+	const weight = sigma.map((s) => 1 / (s * s));
+	let keep = new Uint8Array(n).fill(1);
+	let mean = weightedMean(mu, weight, keep);
+	let iterations = 0;
+	const warnings: CalibrationWarning[] = [];
+
+	if (clipSigma !== null) {
+		for (; iterations < maxIterations; iterations++) {
+			const next = new Uint8Array(n);
+			let kept = 0;
+			for (let i = 0; i < n; i++) {
+				if (Math.abs(mu[i] - mean) / sigma[i] <= clipSigma) {
+					next[i] = 1;
+					kept++;
+				}
+			}
+			if (kept < minStars) {
+				warnings.push({
+					code: 'clipping_stopped',
+					message: `σ-clipping would leave fewer than ${minStars} stars; stopped`,
+					details: { kept, min_stars: minStars }
+				});
+				break;
+			}
+			if (next.every((value, i) => value === keep[i])) break;
+			keep = next;
+			mean = weightedMean(mu, weight, keep);
+		}
+		if (iterations === maxIterations) {
+			warnings.push({
+				code: 'clipping_not_converged',
+				message: `σ-clipping did not settle within ${maxIterations} iterations`,
+				details: { max_iterations: maxIterations }
+			});
+		}
+	}
+
+	let sumW = 0;
+	let sumWLogP = 0;
+	let sumWFeh = 0;
+	let sumWFehWeight = 0;
+	let chi2 = 0;
+	const used: string[] = [];
+	const rejected: HostRejectedStar[] = [];
+	for (let i = 0; i < n; i++) {
+		const residual = (mu[i] - mean) / sigma[i];
+		if (!keep[i]) {
+			rejected.push({ star: stars[i].id, reason: 'sigma_clip', standardizedResidual: residual });
+			continue;
+		}
+		used.push(stars[i].id);
+		sumW += weight[i];
+		sumWLogP += weight[i] * stars[i].logPeriod;
+		const feh = stars[i].feh;
+		if (feh !== null) {
+			sumWFeh += weight[i] * feh;
+			sumWFehWeight += weight[i];
+		}
+		chi2 += residual * residual;
+	}
+	const meanLogPeriod = sumWLogP / sumW;
+	const hasGamma = relation.coefficients.metallicityTerm !== null;
+	const meanFeh = sumWFehWeight > 0 ? sumWFeh / sumWFehWeight : hasGamma ? relation.pivotFeh : null;
+	const coefficientTerm = Math.sqrt(
+		coefficientVariance(
+			relation,
+			meanLogPeriod - relation.pivotLogPeriod,
+			hasGamma && meanFeh !== null ? meanFeh - relation.pivotFeh : 0
+		)
+	);
+	const systematicTerms: SystematicTerm[] = [{ name: 'relation_coefficients', error: coefficientTerm }, ...systematics];
+	const statistical = 1 / Math.sqrt(sumW);
+	const systematic = Math.sqrt(systematicTerms.reduce((sum, term) => sum + term.error ** 2, 0));
+	const total = Math.hypot(statistical, systematic);
+	const nUsed = used.length;
+	return {
+		mu0: { value: mean, statistical, systematic, total },
+		distanceMpc: measuredDistanceFromModulus({ value: mean, error: total }, 'Mpc'),
+		nUsed,
+		used,
+		rejected,
+		meanLogPeriod,
+		meanFeh,
+		systematicTerms,
+		reducedChiSquare: nUsed > 1 ? chi2 / (nUsed - 1) : null,
+		iterations,
+		warnings
+	};
+}

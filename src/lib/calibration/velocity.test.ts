@@ -1,0 +1,131 @@
+import { describe, expect, test } from 'vitest';
+import { CMB_DIPOLE, H_ALPHA_AIR_NM, SPEED_OF_LIGHT_KM_S } from './constants';
+import { CalibrationInputError } from './types';
+import {
+	cmbDipoleProjection,
+	equatorialToGalactic,
+	heliocentricToCmb,
+	hubbleConstant,
+	peculiarVelocityCaution,
+	recessionVelocity,
+	redshiftFromLine
+} from './velocity';
+
+/** Smallest angle between two directions on the sphere (deg). */
+function separationDeg(l1: number, b1: number, l2: number, b2: number): number {
+	const r = Math.PI / 180;
+	const c = Math.sin(b1 * r) * Math.sin(b2 * r) + Math.cos(b1 * r) * Math.cos(b2 * r) * Math.cos((l1 - l2) * r);
+	return Math.acos(Math.min(1, c)) / r;
+}
+
+describe('redshift and recession velocity', () => {
+	test('a 1% shift of Hα in air gives z = 0.01 and v = cz = 2997.92458 km/s (definition of z; SI c)', () => {
+		const z = redshiftFromLine({ observedNm: { value: H_ALPHA_AIR_NM * 1.01, error: 0.02 }, medium: 'air' });
+		expect(z.value).toBeCloseTo(0.01, 14);
+		expect(z.restNm).toBe(656.28);
+		expect(z.error).toBeCloseTo(0.02 / 656.28, 15); // σ_z = σ_λ/λ_rest
+		const v = recessionVelocity(z);
+		expect(v.value).toBeCloseTo(2997.92458, 8);
+		expect(v.error).toBeCloseTo((SPEED_OF_LIGHT_KM_S * 0.02) / 656.28, 10);
+		expect(v.formula).toBe('cz');
+	});
+
+	test('the same observed wavelength in vacuum uses 656.46 nm (NIST vacuum Hα, from memory)', () => {
+		const z = redshiftFromLine({ observedNm: { value: 663.0, error: 0 }, medium: 'vacuum', line: 'h_alpha' });
+		expect(z.value).toBeCloseTo(663.0 / 656.46 - 1, 14);
+		expect(z.restNm).toBe(656.46);
+	});
+
+	test('the rest-wavelength error adds in quadrature: σ_z² = (σ_o/λ_r)² + (λ_o σ_r/λ_r²)²', () => {
+		const z = redshiftFromLine({
+			observedNm: { value: 660, error: 0.03 },
+			medium: 'air',
+			restNm: { value: 656, error: 0.04 }
+		});
+		expect(z.error).toBeCloseTo(Math.hypot(0.03 / 656, (660 * 0.04) / 656 ** 2), 15);
+	});
+
+	test('the q0 expansion cz[1 + ½(1 − q0)z] (Peebles 1993 §13, from memory): q0 = 1 reduces to cz; q0 = −0.55 at z = 0.1', () => {
+		const z = { value: 0.1, error: 1e-4 };
+		expect(recessionVelocity(z, { q0: 1 }).value).toBeCloseTo(SPEED_OF_LIGHT_KM_S * 0.1, 9);
+		const v = recessionVelocity(z, { q0: -0.55 });
+		expect(v.value).toBeCloseTo(29_979.2458 * (1 + 0.5 * 1.55 * 0.1), 6);
+		expect(v.error).toBeCloseTo(SPEED_OF_LIGHT_KM_S * (1 + 1.55 * 0.1) * 1e-4, 9);
+		expect(v.q0).toBe(-0.55);
+	});
+
+	test('a non-positive wavelength is refused with the field named', () => {
+		expect(() => redshiftFromLine({ observedNm: { value: -1, error: 0 }, medium: 'air' })).toThrow(
+			CalibrationInputError
+		);
+		try {
+			redshiftFromLine({ observedNm: { value: 0, error: 0 }, medium: 'air' });
+		} catch (error) {
+			expect((error as CalibrationInputError).issues[0].field).toBe('observed_nm');
+		}
+	});
+});
+
+describe('heliocentric → CMB frame', () => {
+	test('Galactic centre RA 266.405°, Dec −28.936° maps to l ≈ 0, b ≈ 0 within 0.01° (Sgr A* region, from memory)', () => {
+		const { lDeg, bDeg } = equatorialToGalactic(266.405, -28.936);
+		expect(separationDeg(lDeg, bDeg, 0, 0)).toBeLessThan(0.01);
+	});
+
+	test('the north galactic pole maps to b = 90° and the north celestial pole to l = 122.93192° (IAU frame definition)', () => {
+		expect(equatorialToGalactic(192.85948, 27.12825).bDeg).toBeCloseTo(90, 8);
+		const ncp = equatorialToGalactic(0, 89.999999);
+		expect(ncp.lDeg).toBeCloseTo(122.93192, 3);
+		expect(ncp.bDeg).toBeCloseTo(27.12825, 4);
+	});
+
+	test('M31 (RA 10.6847°, Dec +41.2690°) is at l ≈ 121.17°, b ≈ −21.57° to 0.02° (NED/SIMBAD, from memory)', () => {
+		const { lDeg, bDeg } = equatorialToGalactic(10.6847, 41.269);
+		expect(separationDeg(lDeg, bDeg, 121.1743, -21.5733)).toBeLessThan(0.02);
+	});
+
+	test('a galaxy at the dipole apex gets +369.8 km/s, the antipode −369.8, 90° away 0 (Planck 2018 dipole, from memory)', () => {
+		const apex = { lDeg: CMB_DIPOLE.galacticLongitudeDeg, bDeg: CMB_DIPOLE.galacticLatitudeDeg };
+		const anti = { lDeg: apex.lDeg + 180, bDeg: -apex.bDeg };
+		expect(cmbDipoleProjection(apex)).toBeCloseTo(369.8, 9);
+		expect(cmbDipoleProjection(anti)).toBeCloseTo(-369.8, 9);
+		expect(cmbDipoleProjection({ lDeg: apex.lDeg, bDeg: apex.bDeg - 90 })).toBeCloseTo(0, 9);
+		const v = heliocentricToCmb({ value: 1000, error: 5 }, apex);
+		expect(v.value).toBeCloseTo(1369.8, 9);
+		expect(v.error).toBe(5);
+	});
+
+	test('an equatorial position and its galactic equivalent get the same correction', () => {
+		const galactic = equatorialToGalactic(150.1, 2.2);
+		expect(cmbDipoleProjection({ raDeg: 150.1, decDeg: 2.2 })).toBeCloseTo(cmbDipoleProjection(galactic), 10);
+	});
+});
+
+describe('H0 and the peculiar-velocity caution', () => {
+	test.each([
+		// PRODUCT.md: σ_pec = 250 km/s is ~36% of the Hubble-flow velocity at 10 Mpc and ~12% at 30 Mpc (H0 ≈ 70).
+		[10, 0.357, 0.36],
+		[30, 0.119, 0.12]
+	])('at %d Mpc with H0 = 70, σ_pec/v = %f (≈ %f)', (mpc, exact, rounded) => {
+		const caution = peculiarVelocityCaution(70 * mpc);
+		expect(caution.details?.fraction as number).toBeCloseTo(exact, 3);
+		expect(Math.round((caution.details?.fraction as number) * 100) / 100).toBe(rounded);
+		expect(caution.code).toBe('peculiar_velocity');
+	});
+
+	test('H0 = v/d with the distance, velocity and σ_pec terms in quadrature', () => {
+		const h0 = hubbleConstant({ velocity: { value: 2100, error: 30 }, distanceMpc: { value: 30, error: 1.5 } });
+		expect(h0.value).toBeCloseTo(70, 12);
+		expect(h0.budget.distance).toBeCloseTo(0.05, 12);
+		expect(h0.budget.velocity).toBeCloseTo(30 / 2100, 12);
+		expect(h0.budget.peculiarVelocity).toBeCloseTo(250 / 2100, 12);
+		expect(h0.error).toBeCloseTo(70 * Math.hypot(0.05, 30 / 2100, 250 / 2100), 10);
+		expect(h0.error / h0.value).toBeCloseTo(0.1299, 4); // dominated by σ_pec/v = 11.9%, not the 5% distance error
+		const noPec = hubbleConstant({
+			velocity: { value: 2100, error: 30 },
+			distanceMpc: { value: 30, error: 1.5 },
+			peculiarVelocityKmS: 0
+		});
+		expect(noPec.error).toBeLessThan(h0.error / 2);
+	});
+});

@@ -1,0 +1,221 @@
+/**
+ * Redshift from a spectral line, recession velocity, the heliocentric → CMB frame correction and H0.
+ *
+ * Only the low-redshift forms are offered: v = c·z, or the expansion v = c·z·[1 + ½(1 − q0)·z]
+ * (e.g. Peebles 1993, Principles of Physical Cosmology, §13; common practice). The special-relativistic
+ * Doppler formula is deliberately absent: cosmological redshift is the stretching of wavelengths by
+ * the expansion of space, not a velocity through it, so that formula does not describe it.
+ */
+import {
+	CMB_DIPOLE,
+	DEFAULT_PECULIAR_VELOCITY_KM_S,
+	GALACTIC_POLE_J2000,
+	H_ALPHA_AIR_NM,
+	H_ALPHA_VACUUM_NM,
+	SPEED_OF_LIGHT_KM_S
+} from './constants';
+import { CalibrationInputError, type CalibrationWarning, type Measured } from './types';
+
+export type WavelengthMedium = 'air' | 'vacuum';
+
+/** Rest wavelengths (nm) of the preset lines, per medium. */
+export const LINE_REST_WAVELENGTHS_NM = {
+	h_alpha: { air: H_ALPHA_AIR_NM, vacuum: H_ALPHA_VACUUM_NM }
+} as const;
+export type LinePreset = keyof typeof LINE_REST_WAVELENGTHS_NM;
+
+export interface LineMeasurement {
+	/** Observed wavelength and its 1σ error (nm). */
+	observedNm: Measured;
+	/** Medium the observed wavelength is given in; the rest wavelength is taken in the same medium. */
+	medium: WavelengthMedium;
+	/** A preset line, or an explicit rest wavelength (nm, same medium) with an optional error. */
+	line?: LinePreset;
+	restNm?: Measured;
+}
+
+const DEG = Math.PI / 180;
+
+function fail(field: string, message: string): never {
+	throw new CalibrationInputError([{ star: null, field, message }]);
+}
+
+function requirePositive(field: string, value: number): void {
+	if (!Number.isFinite(value) || value <= 0) fail(field, 'must be a finite number > 0');
+}
+
+function requireNonNegative(field: string, value: number): void {
+	if (!Number.isFinite(value) || value < 0) fail(field, 'must be a finite number ≥ 0');
+}
+
+/**
+ * z = λ_obs/λ_rest − 1 with both wavelengths in the same medium;
+ * σ_z² = (σ_obs/λ_rest)² + (λ_obs σ_rest/λ_rest²)².
+ */
+export function redshiftFromLine(measurement: LineMeasurement): Measured & { restNm: number } {
+	const { observedNm, medium } = measurement;
+	requirePositive('observed_nm', observedNm.value);
+	requireNonNegative('observed_nm_error', observedNm.error);
+	if (medium !== 'air' && medium !== 'vacuum') fail('medium', 'must be "air" or "vacuum"');
+	let rest: Measured;
+	if (measurement.restNm) {
+		rest = measurement.restNm;
+		requirePositive('rest_nm', rest.value);
+		requireNonNegative('rest_nm_error', rest.error);
+	} else {
+		const line = measurement.line ?? 'h_alpha';
+		const preset = LINE_REST_WAVELENGTHS_NM[line];
+		if (!preset) fail('line', `unknown line preset "${line}"`);
+		rest = { value: preset[medium], error: 0 };
+	}
+	const value = observedNm.value / rest.value - 1;
+	const error = Math.hypot(observedNm.error / rest.value, (observedNm.value * rest.error) / rest.value ** 2);
+	return { value, error, restNm: rest.value };
+}
+
+export interface VelocityOptions {
+	/** Deceleration parameter for v = c·z·[1 + ½(1 − q0)·z]; omit for v = c·z. */
+	q0?: number;
+}
+
+export interface RecessionVelocity extends Measured {
+	formula: 'cz' | 'cz_q0';
+	q0: number | null;
+}
+
+/** v = c·z, or c·z·[1 + ½(1 − q0)·z] when q0 is stated; σ_v = |dv/dz|·σ_z. */
+export function recessionVelocity(z: Measured, options: VelocityOptions = {}): RecessionVelocity {
+	if (!Number.isFinite(z.value)) fail('z', 'must be finite');
+	requireNonNegative('z_error', z.error);
+	const c = SPEED_OF_LIGHT_KM_S;
+	if (options.q0 === undefined) {
+		return { value: c * z.value, error: c * z.error, formula: 'cz', q0: null };
+	}
+	if (!Number.isFinite(options.q0)) fail('q0', 'must be finite');
+	const k = 0.5 * (1 - options.q0);
+	return {
+		value: c * z.value * (1 + k * z.value),
+		error: c * Math.abs(1 + 2 * k * z.value) * z.error,
+		formula: 'cz_q0',
+		q0: options.q0
+	};
+}
+
+export interface GalacticPosition {
+	lDeg: number;
+	bDeg: number;
+}
+
+/**
+ * ICRS/J2000 (α, δ) → galactic (l, b) by rotation about the galactic pole:
+ *   sin b = sin δ sin δ_G + cos δ cos δ_G cos(α − α_G)
+ *   l = l_NCP − atan2(cos δ sin(α − α_G), sin δ cos δ_G − cos δ sin δ_G cos(α − α_G))
+ * with α_G = 192.85948°, δ_G = 27.12825°, l_NCP = 122.93192° (IAU galactic frame; common practice).
+ */
+export function equatorialToGalactic(raDeg: number, decDeg: number): GalacticPosition {
+	const { raDeg: raPole, decDeg: decPole, northCelestialPoleLongitudeDeg: lNcp } = GALACTIC_POLE_J2000;
+	const dec = decDeg * DEG;
+	const dRa = (raDeg - raPole) * DEG;
+	const dPole = decPole * DEG;
+	const sinB = Math.sin(dec) * Math.sin(dPole) + Math.cos(dec) * Math.cos(dPole) * Math.cos(dRa);
+	const b = Math.asin(Math.min(1, Math.max(-1, sinB)));
+	const y = Math.cos(dec) * Math.sin(dRa);
+	const x = Math.sin(dec) * Math.cos(dPole) - Math.cos(dec) * Math.sin(dPole) * Math.cos(dRa);
+	const l = (((lNcp - Math.atan2(y, x) / DEG) % 360) + 360) % 360;
+	return { lDeg: l, bDeg: b / DEG };
+}
+
+export interface Dipole {
+	speedKmS: number;
+	galacticLongitudeDeg: number;
+	galacticLatitudeDeg: number;
+}
+
+export type SkyPosition = GalacticPosition | { raDeg: number; decDeg: number };
+
+function toGalactic(position: SkyPosition): GalacticPosition {
+	return 'lDeg' in position ? position : equatorialToGalactic(position.raDeg, position.decDeg);
+}
+
+/**
+ * The dipole's projection on the line of sight, v_dipole·cos θ, with
+ * cos θ = sin b sin b_0 + cos b cos b_0 cos(l − l_0) for the apex (l_0, b_0).
+ */
+export function cmbDipoleProjection(position: SkyPosition, dipole: Dipole = CMB_DIPOLE): number {
+	const { lDeg, bDeg } = toGalactic(position);
+	const b = bDeg * DEG;
+	const b0 = dipole.galacticLatitudeDeg * DEG;
+	const cosTheta =
+		Math.sin(b) * Math.sin(b0) + Math.cos(b) * Math.cos(b0) * Math.cos((lDeg - dipole.galacticLongitudeDeg) * DEG);
+	return dipole.speedKmS * cosTheta;
+}
+
+/** v_CMB = v_hel + v_dipole·cos θ (first order in v/c). */
+export function heliocentricToCmb(
+	heliocentric: Measured,
+	position: SkyPosition,
+	dipole: Dipole = CMB_DIPOLE
+): Measured & { correctionKmS: number } {
+	const correctionKmS = cmbDipoleProjection(position, dipole);
+	return { value: heliocentric.value + correctionKmS, error: heliocentric.error, correctionKmS };
+}
+
+export interface HubbleConstantInput {
+	/** Recession velocity (km/s), ideally in the CMB frame. */
+	velocity: Measured;
+	distanceMpc: Measured;
+	/** σ_pec (km/s); default 250 (common practice). */
+	peculiarVelocityKmS?: number;
+}
+
+export interface HubbleConstantEstimate extends Measured {
+	/** Fractional contributions to σ_H0/H0, each a 1σ term added in quadrature. */
+	budget: { distance: number; velocity: number; peculiarVelocity: number };
+	peculiarVelocityKmS: number;
+	caution: CalibrationWarning;
+}
+
+/** σ_pec/v: what a single galaxy's peculiar motion does to H0 at this velocity. */
+export function peculiarVelocityCaution(
+	velocityKmS: number,
+	peculiarVelocityKmS: number = DEFAULT_PECULIAR_VELOCITY_KM_S
+): CalibrationWarning {
+	const fraction = peculiarVelocityKmS / Math.abs(velocityKmS);
+	return {
+		code: 'peculiar_velocity',
+		message: `a peculiar velocity of ${peculiarVelocityKmS} km/s is ${(100 * fraction).toFixed(0)}% of this galaxy's recession velocity; one galaxy gives H0 only to about that precision`,
+		field: 'velocity',
+		details: {
+			peculiar_velocity_km_s: peculiarVelocityKmS,
+			velocity_km_s: velocityKmS,
+			fraction
+		}
+	};
+}
+
+/**
+ * H0 = v/d (km/s/Mpc), with (σ_H0/H0)² = (σ_d/d)² + (σ_v/v)² + (σ_pec/v)².
+ */
+export function hubbleConstant(input: HubbleConstantInput): HubbleConstantEstimate {
+	const { velocity, distanceMpc } = input;
+	const sigmaPec = input.peculiarVelocityKmS ?? DEFAULT_PECULIAR_VELOCITY_KM_S;
+	requirePositive('velocity', velocity.value);
+	requireNonNegative('velocity_error', velocity.error);
+	requirePositive('distance_mpc', distanceMpc.value);
+	requireNonNegative('distance_mpc_error', distanceMpc.error);
+	requireNonNegative('peculiar_velocity_km_s', sigmaPec);
+	const value = velocity.value / distanceMpc.value;
+	const budget = {
+		distance: distanceMpc.error / distanceMpc.value,
+		velocity: velocity.error / velocity.value,
+		peculiarVelocity: sigmaPec / velocity.value
+	};
+	const error = value * Math.hypot(budget.distance, budget.velocity, budget.peculiarVelocity);
+	return {
+		value,
+		error,
+		budget,
+		peculiarVelocityKmS: sigmaPec,
+		caution: peculiarVelocityCaution(velocity.value, sigmaPec)
+	};
+}
