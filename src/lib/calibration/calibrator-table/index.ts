@@ -1,0 +1,5 @@
+export * from './fields';
+export * from './parse';
+export * from './export';
+export * from './diff';
+export * from './to-calibrator-rows';
