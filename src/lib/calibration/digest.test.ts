@@ -47,6 +47,7 @@ function sampleVersion(): RelationVersionContent {
 		validity: { log_period_min: 0.42, log_period_max: 1.63, feh_min: -0.41, feh_max: 0.32 },
 		fit: {
 			method: 'ml_scatter',
+			anchor: 'parallax',
 			weighted_covariance: 'absolute',
 			fixed_slope: null,
 			fixed_zero_point: null,
@@ -57,7 +58,8 @@ function sampleVersion(): RelationVersionContent {
 			bootstrap: { resamples: 1000, generator: 'xoroshiro128plus', seed: 20260101, level: 0.68 },
 			population: 'classical_fundamental',
 			period_filter: { log_period_min: 0.4, log_period_max: null },
-			fundamentalised: false
+			fundamentalised: false,
+			assumed_intrinsic_scatter: null
 		},
 		engine_version: ENGINE_VERSION,
 		calibrator_set: { slug: 'mw-cepheids', revision: 2, digest: `sha256:${'ab'.repeat(32)}` },

@@ -4,7 +4,7 @@
  * it. Every key is always present: absent values are written as null, never left out.
  */
 import { z } from 'zod';
-import { FIT_METHODS } from './fit/types';
+import { REFIT_METHODS } from './fit/types';
 import {
 	CalibrationInputError,
 	EXTINCTION_LAW_IDS,
@@ -36,7 +36,8 @@ const coefficientAxis = z.enum([
 export const RELATION_FORMS = ['period_luminosity', 'period_luminosity_metallicity'] as const;
 
 const fitSpecSchema = z.strictObject({
-	method: z.enum(FIT_METHODS),
+	method: z.enum(REFIT_METHODS),
+	anchor: z.enum(['parallax', 'host']),
 	/** How a weighted fit's covariance was scaled; null for ols. */
 	weighted_covariance: z.enum(['absolute', 'reduced_chi_square']).nullable(),
 	fixed_slope: finite.nullable(),
@@ -60,7 +61,9 @@ const fitSpecSchema = z.strictObject({
 		log_period_max: finite.nullable()
 	}),
 	/** Whether first-overtone periods were fundamentalised before fitting. */
-	fundamentalised: z.boolean()
+	fundamentalised: z.boolean(),
+	/** σ_int held fixed inside a parallax-space fit; null for the other methods. */
+	assumed_intrinsic_scatter: nonNegative.nullable()
 });
 
 export const relationVersionContentSchema = z

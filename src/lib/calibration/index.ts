@@ -20,3 +20,4 @@ export * from './mean-magnitude';
 export * from './frozen-content';
 export * from './digest';
 export * from './calibrator-table/index';
+export * from './refit';

@@ -82,14 +82,45 @@ describe('proposal workflow', () => {
 		expect(decide(inReview(), 'rebase', author)).toMatchObject({ allowed: false, code: 'not_stale' });
 	});
 
+	test('edits are the author’s, only in draft or after changes were requested, and clear approvals', () => {
+		expect(decide(inReview({ state: 'draft' }), 'edit', author)).toMatchObject({
+			allowed: true,
+			next: 'draft',
+			approvals: []
+		});
+		expect(decide(inReview(), 'edit', author)).toMatchObject({ allowed: false, code: 'wrong_state' });
+		expect(decide(inReview({ state: 'changes_requested' }), 'edit', reviewerA)).toMatchObject({
+			allowed: false,
+			code: 'not_author'
+		});
+	});
+
+	test('comments are open in every open state and closed once decided', () => {
+		expect(decide(inReview({ approvals: ['rev-a'] }), 'comment', bystander)).toMatchObject({
+			allowed: true,
+			next: 'in_review',
+			approvals: ['rev-a']
+		});
+		expect(decide(inReview({ state: 'rejected' }), 'comment', bystander)).toMatchObject({
+			allowed: false,
+			code: 'decided'
+		});
+	});
+
 	test('requesting changes discards earlier approvals', () => {
 		const decision = decide(inReview({ approvals: ['rev-a'], requiredApprovals: 2 }), 'request_changes', reviewerB);
 		expect(decision).toMatchObject({ allowed: true, next: 'changes_requested', approvals: [] });
 	});
 
 	test('available commands match the decisions', () => {
-		expect(availableCommands(inReview(), author)).toEqual(['withdraw']);
-		expect(availableCommands(inReview(), reviewerA)).toEqual(['request_changes', 'approve', 'reject']);
+		expect(availableCommands(inReview(), author)).toEqual(['comment', 'withdraw']);
+		expect(availableCommands(inReview(), reviewerA)).toEqual(['comment', 'request_changes', 'approve', 'reject']);
+		expect(availableCommands(inReview({ state: 'changes_requested' }), author)).toEqual([
+			'edit',
+			'comment',
+			'submit',
+			'withdraw'
+		]);
 		expect(availableCommands(inReview({ state: 'approved' }), author)).toEqual([]);
 	});
 });

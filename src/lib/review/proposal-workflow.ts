@@ -16,7 +16,16 @@ export const PROPOSAL_STATES = [
 ] as const;
 export type ProposalState = (typeof PROPOSAL_STATES)[number];
 
-export const PROPOSAL_COMMANDS = ['submit', 'request_changes', 'approve', 'reject', 'withdraw', 'rebase'] as const;
+export const PROPOSAL_COMMANDS = [
+	'edit',
+	'comment',
+	'submit',
+	'request_changes',
+	'approve',
+	'reject',
+	'withdraw',
+	'rebase'
+] as const;
 export type ProposalCommand = (typeof PROPOSAL_COMMANDS)[number];
 
 export const DECIDED_STATES: ReadonlySet<ProposalState> = new Set(['approved', 'rejected', 'withdrawn']);
@@ -71,6 +80,15 @@ export function decide(proposal: ProposalSnapshot, command: ProposalCommand, act
 	const isAuthor = actor.id === proposal.authorId;
 
 	switch (command) {
+		case 'edit': {
+			if (!isAuthor) return refuse('not_author', 'Only the author can edit the proposal.');
+			if (proposal.state === 'in_review')
+				return refuse('wrong_state', 'Edits are made in draft or after changes were requested.');
+			return { allowed: true, next: proposal.state, approvals: [], freezesVersion: null };
+		}
+		case 'comment':
+			// Anyone who may see an open proposal may comment on it; visibility is the caller's check.
+			return { allowed: true, next: proposal.state, approvals: [...proposal.approvals], freezesVersion: null };
 		case 'submit': {
 			if (!isAuthor) return refuse('not_author', 'Only the author can submit the proposal for review.');
 			if (proposal.state === 'in_review') return refuse('wrong_state', 'The proposal is already in review.');

@@ -21,6 +21,10 @@ export interface CalibratorPoint {
 export const FIT_METHODS = ['ols', 'wls', 'ml_scatter'] as const;
 export type FitMethod = (typeof FIT_METHODS)[number];
 
+/** Every method a refit may use: the linear fits plus the fit in parallax space. */
+export const REFIT_METHODS = [...FIT_METHODS, 'parallax_space'] as const;
+export type RefitMethod = (typeof REFIT_METHODS)[number];
+
 export interface ClippingOptions {
 	/** Reject a star when |standardized residual| exceeds this. */
 	sigma: number;
