@@ -1,0 +1,98 @@
+import {
+	CreateBucketCommand,
+	DeleteObjectCommand,
+	GetObjectCommand,
+	HeadBucketCommand,
+	HeadObjectCommand,
+	NotFound,
+	PutObjectCommand,
+	S3Client
+} from '@aws-sdk/client-s3';
+import { createHash } from 'node:crypto';
+
+/**
+ * Original upload files live in S3-compatible object storage, addressed by their sha256, so the same
+ * file is stored once and a stored object can never be silently replaced by different bytes.
+ */
+export interface ObjectStorageOptions {
+	/** e.g. http://127.0.0.1:4569 for the local fake server; omitted for AWS itself. */
+	endpoint?: string;
+	region: string;
+	bucket: string;
+	accessKeyId: string;
+	secretAccessKey: string;
+	/** Path-style URLs (bucket in the path), which most S3-compatible servers need. */
+	forcePathStyle: boolean;
+}
+
+export interface StoredObject {
+	key: string;
+	sha256: string;
+	size: number;
+}
+
+export class ObjectStorage {
+	private readonly client: S3Client;
+	readonly bucket: string;
+
+	constructor(options: ObjectStorageOptions) {
+		this.bucket = options.bucket;
+		this.client = new S3Client({
+			endpoint: options.endpoint,
+			region: options.region,
+			forcePathStyle: options.forcePathStyle,
+			credentials: { accessKeyId: options.accessKeyId, secretAccessKey: options.secretAccessKey }
+		});
+	}
+
+	/** Creates the bucket when it is missing (the local fake server starts empty). */
+	async ensureBucket(): Promise<void> {
+		try {
+			await this.client.send(new HeadBucketCommand({ Bucket: this.bucket }));
+		} catch {
+			await this.client.send(new CreateBucketCommand({ Bucket: this.bucket }));
+		}
+	}
+
+	/** Stores bytes under `<prefix>/sha256/<hex>`; storing the same bytes again is a no-op. */
+	async putContentAddressed(prefix: string, body: Uint8Array, contentType: string): Promise<StoredObject> {
+		const sha256 = createHash('sha256').update(body).digest('hex');
+		const key = `${prefix}/sha256/${sha256}`;
+		if (!(await this.exists(key))) {
+			await this.client.send(
+				new PutObjectCommand({
+					Bucket: this.bucket,
+					Key: key,
+					Body: body,
+					ContentType: contentType,
+					Metadata: { sha256 }
+				})
+			);
+		}
+		return { key, sha256, size: body.byteLength };
+	}
+
+	async get(key: string): Promise<Uint8Array> {
+		const response = await this.client.send(new GetObjectCommand({ Bucket: this.bucket, Key: key }));
+		if (!response.Body) throw new Error(`object ${key} has no body`);
+		return response.Body.transformToByteArray();
+	}
+
+	async exists(key: string): Promise<boolean> {
+		try {
+			await this.client.send(new HeadObjectCommand({ Bucket: this.bucket, Key: key }));
+			return true;
+		} catch (error) {
+			if (error instanceof NotFound || (error as { name?: string }).name === 'NotFound') return false;
+			throw error;
+		}
+	}
+
+	async delete(key: string): Promise<void> {
+		await this.client.send(new DeleteObjectCommand({ Bucket: this.bucket, Key: key }));
+	}
+
+	destroy(): void {
+		this.client.destroy();
+	}
+}
