@@ -3,6 +3,7 @@
  * warm-up, with the baseline timed in the same process). Sets a non-zero exit code when a target is missed.
  */
 import { buildCases } from './calibration.bench';
+import { printLightCurveBenchmarks, runLightCurveBenchmarks } from './light-curves.bench';
 
 function median(values: number[]): number {
 	const sorted = [...values].sort((a, b) => a - b);
@@ -48,3 +49,7 @@ console.log(`Candlebook calibration benchmarks — node ${process.version}, ${pr
 console.table(rows.map(({ met: _met, ...row }) => row));
 void sink;
 if (rows.some((row) => row.met === false)) process.exitCode = 1;
+
+const lightCurveRows = runLightCurveBenchmarks();
+printLightCurveBenchmarks(lightCurveRows);
+if (lightCurveRows.some((row) => row.met === false)) process.exitCode = 1;

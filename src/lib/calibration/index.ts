@@ -21,3 +21,4 @@ export * from './frozen-content';
 export * from './digest';
 export * from './calibrator-table/index';
 export * from './refit';
+export * from './light-curves/index';
