@@ -23,6 +23,8 @@ const finite = z.number();
 const nonNegative = z.number().nonnegative();
 const slug = z.string().regex(SLUG, 'must be a lowercase slug (a-z, 0-9, single hyphens)');
 const stableId = z.string().regex(ID, 'must be a snake_case id');
+/** A calibrator field name: snake_case, except that band ids keep their case (mag_V, mag_err_W_VI). */
+const fieldName = z.string().regex(/^[a-z][A-Za-z0-9_]*$/, 'must be a Candlebook field name');
 const utcTimestamp = z.iso.datetime({ offset: false, local: false });
 export const digestString = z.string().regex(DIGEST, 'must be "sha256:" followed by 64 lowercase hex digits');
 
@@ -152,7 +154,7 @@ export const calibratorRevisionContentSchema = z
 		}),
 		/** How the uploaded file's columns map to Candlebook fields, and their units (null when unitless). */
 		columns: z
-			.array(z.strictObject({ field: stableId, source_column: z.string().min(1), unit: z.string().min(1).nullable() }))
+			.array(z.strictObject({ field: fieldName, source_column: z.string().min(1), unit: z.string().min(1).nullable() }))
 			.min(1),
 		rows: z.array(z.strictObject({ star: z.string().min(1), values: z.record(z.string(), cellValue) }))
 	})
