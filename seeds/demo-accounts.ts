@@ -1,4 +1,4 @@
-import type { Role } from '../src/lib/server/entities/index';
+import type { GroupStanding, Role } from '../src/lib/server/entities/index';
 
 /**
  * Invented demo people (the `.invalid` domain can never receive mail). Shared by the seeder and the
@@ -6,24 +6,46 @@ import type { Role } from '../src/lib/server/entities/index';
  */
 export const DEMO_PASSWORD = 'candlebook-demo';
 
-export const DEMO_ACCOUNTS: ReadonlyArray<{ email: string; displayName: string; affiliation: string; roles: Role[] }> =
-	[
-		{
-			email: 'imre.vasko@demo.candlebook.invalid',
-			displayName: 'Imre Vasko',
-			affiliation: 'Tamsin Ridge Observatory (invented)',
-			roles: ['reader', 'curator']
-		},
-		{
-			email: 'oluwaseun.brandt@demo.candlebook.invalid',
-			displayName: 'Oluwaseun Brandt',
-			affiliation: 'Institute for Pulsating Stars (invented)',
-			roles: ['reader', 'reviewer']
-		},
-		{
-			email: 'mireille.achterberg@demo.candlebook.invalid',
-			displayName: 'Mireille Achterberg',
-			affiliation: 'Candlebook demo operations (invented)',
-			roles: ['reader', 'admin']
-		}
-	];
+export interface DemoAccount {
+	email: string;
+	displayName: string;
+	affiliation: string;
+	roles: Role[];
+	/** Standing in the demo group, if any. */
+	demoGroup?: GroupStanding;
+}
+
+export const DEMO_GROUP = {
+	slug: 'kestrel-cepheid-survey',
+	name: 'Kestrel Cepheid Survey (invented)',
+	description: 'An invented survey team for the demo: it owns the demo relations and calibrator sets.'
+};
+
+export const DEMO_ACCOUNTS: ReadonlyArray<DemoAccount> = [
+	{
+		email: 'ngaio.marchetti@demo.candlebook.invalid',
+		displayName: 'Ngaio Marchetti',
+		affiliation: 'Ostrava Plains College (invented)',
+		roles: ['reader']
+	},
+	{
+		email: 'imre.vasko@demo.candlebook.invalid',
+		displayName: 'Imre Vasko',
+		affiliation: 'Tamsin Ridge Observatory (invented)',
+		roles: ['reader', 'curator'],
+		demoGroup: 'manager'
+	},
+	{
+		email: 'oluwaseun.brandt@demo.candlebook.invalid',
+		displayName: 'Oluwaseun Brandt',
+		affiliation: 'Institute for Pulsating Stars (invented)',
+		roles: ['reader', 'reviewer'],
+		demoGroup: 'member'
+	},
+	{
+		email: 'mireille.achterberg@demo.candlebook.invalid',
+		displayName: 'Mireille Achterberg',
+		affiliation: 'Candlebook demo operations (invented)',
+		roles: ['reader', 'admin']
+	}
+];

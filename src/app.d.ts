@@ -1,5 +1,7 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
+import type { Session } from 'lucia';
 import type { FieldError } from '$lib/server/api/problem';
+import type { AuthUser, TokenCredential } from '$lib/server/auth/principal';
 
 declare global {
 	namespace App {
@@ -14,6 +16,14 @@ declare global {
 			/** A request-scoped fork of the ORM's EntityManager. */
 			em: EntityManager;
 			requestId: string;
+			/** The signed-in person (browser session or API token), or null. */
+			user: AuthUser | null;
+			/** The browser session, when the request came with a valid session cookie. */
+			session: Session | null;
+			/** The API token, when the request came with a valid `Authorization: Bearer` header. */
+			apiToken: TokenCredential | null;
+			/** True when the request carried an Authorization header that is not a valid token. */
+			badBearer: boolean;
 		}
 	}
 }

@@ -1,6 +1,7 @@
 import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { PROBLEM_CONTENT_TYPE, problem } from '$lib/server/api/problem';
+import { handleAuth, handleGuard } from '$lib/server/auth/request-hooks';
 import { getConfig } from '$lib/server/config';
 import { closeOrm, getOrm } from '$lib/server/db';
 import { logger } from '$lib/server/logger';
@@ -51,7 +52,7 @@ const handleApiProblems: Handle = async ({ event, resolve }) => {
 	return problem(response.status, body.message, body.errors ? { errors: body.errors } : {}, headers);
 };
 
-export const handle = sequence(handleRequestLog, handleDb, handleApiProblems);
+export const handle = sequence(handleRequestLog, handleDb, handleApiProblems, handleAuth, handleGuard);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message };

@@ -7,3 +7,16 @@ export interface NavigationItem {
 }
 
 export const PRIMARY_NAVIGATION: NavigationItem[] = [{ href: '/', label: 'Overview' }];
+
+export interface Viewer {
+	displayName: string;
+	isAdmin: boolean;
+}
+
+/** The account corner of the header: sign-in for visitors, account (and administration) otherwise. */
+export function accountNavigation(viewer: Viewer | null): NavigationItem[] {
+	if (!viewer) return [{ href: '/sign-in', label: 'Sign in' }];
+	const items: NavigationItem[] = [{ href: '/account', label: 'Account' }];
+	if (viewer.isAdmin) items.push({ href: '/admin', label: 'Administration' });
+	return items;
+}

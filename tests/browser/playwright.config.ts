@@ -37,6 +37,9 @@ export default defineConfig({
 		url: `${origin}/healthz`,
 		reuseExistingServer: false,
 		timeout: 60_000,
+		// Server errors are logged as JSON lines; show them beside the failing test.
+		stdout: 'pipe',
+		stderr: 'pipe',
 		env: { HOST: '127.0.0.1', PORT: String(port), ORIGIN: origin, BODY_SIZE_LIMIT: '64M' }
 	}
 });

@@ -1,9 +1,22 @@
+import { ApiToken } from './api-token.entity';
+import { AuditEvent } from './audit-event.entity';
+import { GroupMembership } from './group-membership.entity';
+import { Group } from './group.entity';
+import { OneTimeLink } from './one-time-link.entity';
 import { Session } from './session.entity';
 import { User } from './user.entity';
 
 /** Every entity, listed explicitly (no globs: the CLI, scripts and Vite must see the same list). */
-export const ENTITIES = [User, Session];
+export const ENTITIES = [User, Session, Group, GroupMembership, ApiToken, OneTimeLink, AuditEvent];
 
-export { Session, User };
+export { ApiToken, AuditEvent, Group, GroupMembership, OneTimeLink, Session, User };
+export { ROLES } from './user.entity';
+export { TOKEN_SCOPES } from './api-token.entity';
+export { GROUP_STANDINGS } from './group-membership.entity';
 export type { SessionEntity } from './session.entity';
 export type { Role, UserEntity } from './user.entity';
+export type { GroupEntity } from './group.entity';
+export type { GroupMembershipEntity, GroupStanding } from './group-membership.entity';
+export type { ApiTokenEntity, TokenScope } from './api-token.entity';
+export type { OneTimeLinkEntity, LinkPurpose } from './one-time-link.entity';
+export type { AuditEventEntity, AuditKind } from './audit-event.entity';

@@ -9,7 +9,10 @@ export const Session = defineEntity({
 		id: p.string().length(64).primary(),
 		user: p.manyToOne(User).deleteRule('cascade'),
 		expiresAt: p.datetime().index(),
-		createdAt: p.datetime().onCreate(() => new Date())
+		createdAt: p.datetime().onCreate(() => new Date()),
+		/** Shown on the account page so a person can tell their sessions apart. */
+		userAgent: p.string().length(300).nullable(),
+		clientAddress: p.string().length(64).nullable()
 	})
 });
 

@@ -15,10 +15,14 @@ export const User = defineEntity({
 		displayName: p.string().length(200),
 		affiliation: p.string().length(300).nullable(),
 		orcid: p.string().length(19).nullable(),
-		// Never leaves the server: DTO mappers whitelist fields.
+		// Never leaves the server: DTO mappers whitelist fields. Null until an invitation is accepted.
 		passwordHash: p.text().nullable(),
 		roles: p.array<Role>().default('{reader}'),
-		createdAt: p.datetime().onCreate(() => new Date())
+		createdAt: p.datetime().onCreate(() => new Date()),
+		/** Set when the person first chose a password (accepting the invitation). */
+		activatedAt: p.datetime().nullable(),
+		/** A suspended account cannot sign in and its tokens stop working. */
+		suspendedAt: p.datetime().nullable()
 	})
 });
 

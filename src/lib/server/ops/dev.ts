@@ -1,7 +1,8 @@
 /** `npm run dev`: Vite's dev server against the same local database `npm start` uses. */
 import { spawn } from 'node:child_process';
 import { join } from 'node:path';
-import { openLocalDatabase } from './local-database';
+import { startMailCatcher } from '../mail/capture-server';
+import { localStateDir, openLocalDatabase } from './local-database';
 import { migrateDatabase, seedDemo } from './migrate';
 import { PROJECT_ROOT } from './project-paths';
 import { onShutdown } from './shutdown';
@@ -10,6 +11,9 @@ const database = await openLocalDatabase();
 onShutdown(() => database.stop());
 await migrateDatabase(database.url);
 await seedDemo(database.url);
+const mailDir = join(localStateDir(), 'mail');
+const mail = process.env.SMTP_URL ? null : await startMailCatcher({ dir: mailDir });
+const mailEnv = mail ? { SMTP_URL: mail.url, CANDLEBOOK_MAIL_CAPTURE_DIR: mailDir } : {};
 
 // Vite is started directly: `npx vite` leaves its child listening when killed.
 const vite = spawn(
@@ -17,7 +21,7 @@ const vite = spawn(
 	['dev', '--host', '127.0.0.1', ...process.argv.slice(2)],
 	{
 		cwd: PROJECT_ROOT,
-		env: { ...process.env, DATABASE_URL: database.url },
+		env: { ...process.env, ...mailEnv, DATABASE_URL: database.url },
 		stdio: 'inherit'
 	}
 );

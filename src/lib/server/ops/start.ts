@@ -1,20 +1,23 @@
 /**
  * `npm start`: the project's own PostgreSQL on 127.0.0.1 → migrations → demo seed → build if stale →
- * the production server. Ctrl-C stops the server and then the database.
+ * the production server, with a local fake SMTP server catching its mail (unless SMTP_URL is set).
+ * Ctrl-C stops the server and then the database.
  */
 import { spawn } from 'node:child_process';
 import { join } from 'node:path';
 import { buildIfStale } from './build';
-import { openLocalDatabase } from './local-database';
+import { startMailCatcher, type MailCatcher } from '../mail/capture-server';
+import { localStateDir, openLocalDatabase } from './local-database';
 import { migrateDatabase, seedDemo } from './migrate';
 import { PROJECT_ROOT } from './project-paths';
 import { serverEnvironment } from './server-environment';
 import { onShutdown } from './shutdown';
 
 const database = await openLocalDatabase();
-const running: { server?: ReturnType<typeof spawn> } = {};
+const running: { server?: ReturnType<typeof spawn>; mail?: MailCatcher } = {};
 onShutdown(() => {
 	running.server?.kill('SIGKILL');
+	void running.mail?.close();
 	database.stop();
 });
 console.log(`[candlebook] PostgreSQL on 127.0.0.1:${database.port}, data in ${database.location}`);
@@ -29,6 +32,15 @@ await seedDemo(database.url);
 buildIfStale();
 
 const env = serverEnvironment(database.url);
+if (!process.env.SMTP_URL) {
+	const mailDir = join(localStateDir(), 'mail');
+	running.mail = await startMailCatcher({ dir: mailDir });
+	env.SMTP_URL = running.mail.url;
+	env.CANDLEBOOK_MAIL_CAPTURE_DIR = mailDir;
+	console.log(
+		`[candlebook] mail goes to a local fake SMTP server (${running.mail.url}); admins read it at /admin/mail`
+	);
+}
 const server = spawn(process.execPath, [join(PROJECT_ROOT, 'build', 'index.js')], {
 	cwd: PROJECT_ROOT,
 	env,
@@ -43,6 +55,7 @@ process.removeAllListeners('SIGTERM');
 process.on('SIGINT', stopServer);
 process.on('SIGTERM', stopServer);
 server.on('exit', (code, signal) => {
+	void running.mail?.close();
 	database.stop();
 	process.exit(signal ? 0 : (code ?? 0));
 });

@@ -21,6 +21,18 @@ export const CHROMIUM: SystemPackage = {
 	isPresent: () => existsSync('/usr/bin/chromium')
 };
 
+export const PYTHON3_ASTROPY: SystemPackage = {
+	name: 'python3-astropy',
+	purpose: 'reference periodograms for the light-curve checks (Debian /usr/bin/python3)',
+	isPresent: () => existsSync('/usr/lib/python3/dist-packages/astropy/timeseries')
+};
+
+export const LIBXML2_UTILS: SystemPackage = {
+	name: 'libxml2-utils',
+	purpose: 'xmllint, which validates exported VOTables against the IVOA schema',
+	isPresent: () => existsSync('/usr/bin/xmllint')
+};
+
 /** Newest `/usr/lib/postgresql/<version>/bin` that holds `initdb`, or null. */
 export function findPostgresBinDir(root = '/usr/lib/postgresql'): string | null {
 	if (!existsSync(root)) return null;

@@ -1,19 +1,21 @@
 /**
  * `npm test`: a throwaway PostgreSQL on a free loopback port → migrations → vitest (unit and
- * integration) → production build → browser tests in Debian's Chromium → teardown, even on failure.
+ * integration) → production build → browser tests in Debian's Chromium, with the app's mail going to a
+ * local fake SMTP server → teardown, even on failure.
  * Exits non-zero when anything failed or when a runner ran nothing.
  */
-import { spawnSync } from 'node:child_process';
+import { spawn } from 'node:child_process';
 import { mkdtempSync, readFileSync, rmSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { startMailCatcher } from '../mail/capture-server';
 import { buildApp } from './build';
 import { openThrowawayDatabase } from './local-database';
 import { migrateDatabase } from './migrate';
 import { freePort } from './postgres-cluster';
 import { PROJECT_ROOT } from './project-paths';
 import { onShutdown } from './shutdown';
-import { CHROMIUM, ensureSystemPackages, POSTGRESQL } from './system-packages';
+import { CHROMIUM, ensureSystemPackages, POSTGRESQL, PYTHON3_ASTROPY } from './system-packages';
 
 interface RunnerSummary {
 	runner: string;
@@ -22,10 +24,13 @@ interface RunnerSummary {
 	skipped: number;
 }
 
-ensureSystemPackages([POSTGRESQL, CHROMIUM]);
+ensureSystemPackages([POSTGRESQL, CHROMIUM, PYTHON3_ASTROPY]);
 const summaryDir = mkdtempSync(join(tmpdir(), 'candlebook-test-summary-'));
 const database = await openThrowawayDatabase();
+const mailDir = join(summaryDir, 'mail');
+const mail = await startMailCatcher({ dir: mailDir });
 onShutdown(() => {
+	void mail.close();
 	database.stop();
 	rmSync(summaryDir, { recursive: true, force: true });
 });
@@ -37,19 +42,30 @@ const env: NodeJS.ProcessEnv = {
 	DATABASE_URL: database.url,
 	CANDLEBOOK_TEST_SUMMARY_DIR: summaryDir,
 	CANDLEBOOK_REFERENCE_DATA: process.env.CANDLEBOOK_REFERENCE_DATA ?? join(PROJECT_ROOT, '..', 'shared', 'data'),
-	LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn'
+	LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
+	// Password hashing at the lowest cost the configuration accepts: tests check behaviour, not
+	// hashing strength, and standard parameters would make each sign-in in a test cost ~50 ms.
+	CANDLEBOOK_ARGON2_MEMORY_KIB: '1024',
+	CANDLEBOOK_ARGON2_PASSES: '1'
 };
 const bin = (name: string) => join(PROJECT_ROOT, 'node_modules', '.bin', name);
+// Asynchronous, so the fake SMTP server in this process keeps answering while the runners work.
 const run = (command: string, args: string[], extraEnv: NodeJS.ProcessEnv = {}) =>
-	spawnSync(command, args, { cwd: PROJECT_ROOT, env: { ...env, ...extraEnv }, stdio: 'inherit' }).status ?? 1;
+	new Promise<number>((resolve) => {
+		const child = spawn(command, args, { cwd: PROJECT_ROOT, env: { ...env, ...extraEnv }, stdio: 'inherit' });
+		child.on('error', () => resolve(1));
+		child.on('exit', (code) => resolve(code ?? 1));
+	});
 
-const vitestStatus = run(bin('vitest'), ['run', ...process.argv.slice(2)]);
+const vitestStatus = await run(bin('vitest'), ['run', ...process.argv.slice(2)]);
 
 let browserStatus = 1;
 try {
 	buildApp();
-	browserStatus = run(bin('playwright'), ['test', '--config', 'tests/browser/playwright.config.ts'], {
-		CANDLEBOOK_TEST_PORT: String(await freePort())
+	browserStatus = await run(bin('playwright'), ['test', '--config', 'tests/browser/playwright.config.ts'], {
+		CANDLEBOOK_TEST_PORT: String(await freePort()),
+		SMTP_URL: mail.url,
+		CANDLEBOOK_MAIL_CAPTURE_DIR: mailDir
 	});
 } catch (error) {
 	console.error(`[candlebook] browser tests could not run: ${(error as Error).message}`);
@@ -73,4 +89,5 @@ console.log('');
 for (const summary of summaries) {
 	console.log(`${summary.runner}: ${summary.passed} passed, ${summary.failed} failed, ${summary.skipped} skipped`);
 }
+void mail.close();
 process.exit(failed ? 1 : 0);

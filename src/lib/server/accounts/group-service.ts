@@ -1,0 +1,69 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { Group, GroupMembership, User, type GroupStanding } from '../entities/index';
+import { recordAudit, type AuditContext } from './audit';
+
+export class GroupError extends Error {}
+
+/** The person's standing in the group with this slug, or null when not a member (or no such group). */
+export async function standingIn(em: EntityManager, userId: string, slug: string): Promise<GroupStanding | null> {
+	const membership = await em.findOne(GroupMembership, { user: userId, group: { slug } }, { fields: ['standing'] });
+	return membership?.standing ?? null;
+}
+
+export async function createGroup(
+	em: EntityManager,
+	input: { slug: string; name: string; description: string | null },
+	audit: AuditContext
+) {
+	if (await em.count(Group, { slug: input.slug })) throw new GroupError(`A group called ${input.slug} exists already.`);
+	const group = em.create(Group, input);
+	await em.flush();
+	await recordAudit(em, 'group-created', { ...audit, subject: group.slug, detail: { name: group.name } });
+	return group;
+}
+
+export async function listGroups(em: EntityManager) {
+	return em.find(Group, {}, { orderBy: { name: 'asc' } });
+}
+
+export async function listMembers(em: EntityManager, slug: string) {
+	return em.find(
+		GroupMembership,
+		{ group: { slug } },
+		{ populate: ['user'], orderBy: { standing: 'desc', user: { displayName: 'asc' } } }
+	);
+}
+
+export async function groupsOf(em: EntityManager, userId: string) {
+	return em.find(GroupMembership, { user: userId }, { populate: ['group'], orderBy: { group: { name: 'asc' } } });
+}
+
+/** Adds a person (by e-mail) to a group, or changes their standing when already a member. */
+export async function addMember(
+	em: EntityManager,
+	slug: string,
+	email: string,
+	standing: GroupStanding,
+	audit: AuditContext
+) {
+	const group = await em.findOne(Group, { slug });
+	if (!group) throw new GroupError(`There is no group called ${slug}.`);
+	const user = await em.findOne(User, { email: email.toLowerCase() });
+	if (!user) throw new GroupError('Nobody with that address has an account; invite them first.');
+	const existing = await em.findOne(GroupMembership, { group, user });
+	const membership = existing ?? em.create(GroupMembership, { group, user, standing });
+	membership.standing = standing;
+	await em.flush();
+	await recordAudit(em, 'group-member-added', {
+		...audit,
+		subject: slug,
+		detail: { userId: user.id, email: user.email, standing }
+	});
+	return membership;
+}
+
+export async function removeMember(em: EntityManager, slug: string, userId: string, audit: AuditContext) {
+	const removed = await em.nativeDelete(GroupMembership, { group: { slug }, user: userId });
+	if (removed === 0) throw new GroupError('That person is not a member of this group.');
+	await recordAudit(em, 'group-member-removed', { ...audit, subject: slug, detail: { userId } });
+}

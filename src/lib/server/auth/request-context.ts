@@ -1,0 +1,21 @@
+import type { RequestEvent } from '@sveltejs/kit';
+import type { AuditContext } from '../accounts/audit';
+
+/** Who did it and from where, for the audit log. */
+export function auditContext(event: Pick<RequestEvent, 'locals' | 'getClientAddress'>): AuditContext {
+	return { actorId: event.locals.user?.id ?? null, clientAddress: clientAddress(event) };
+}
+
+export function clientAddress(event: Pick<RequestEvent, 'getClientAddress'>): string {
+	try {
+		return event.getClientAddress();
+	} catch {
+		return 'unknown';
+	}
+}
+
+/** A `next` target that stays on this site (a path, never `//host` or a full URL). */
+export function safeNext(value: string | null | undefined, fallback = '/account'): string {
+	if (!value || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return fallback;
+	return value;
+}

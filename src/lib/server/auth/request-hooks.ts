@@ -1,0 +1,95 @@
+import { error, redirect, type Handle } from '@sveltejs/kit';
+import { groupStandingFor } from '../accounts/group-lookup';
+import { authenticateToken } from '../accounts/token-service';
+import { problem } from '../api/problem';
+import { logger } from '../logger';
+import { decideAccess, findAccessRule, formActionName, type Credentials } from './access-policy';
+import { SESSION_COOKIE } from './lucia';
+import { appLucia } from './request-lucia';
+import { clearSessionCookie, setSessionCookie, validateSessionToken } from './session';
+
+const isApi = (url: URL) => url.pathname.startsWith('/api/');
+
+/**
+ * Who is asking: a browser session (cookie) on any route, or an API token (`Authorization: Bearer`)
+ * on API routes. A request with neither does no database work at all.
+ */
+export const handleAuth: Handle = async ({ event, resolve }) => {
+	event.locals.user = null;
+	event.locals.session = null;
+	event.locals.apiToken = null;
+	event.locals.badBearer = false;
+	const cookieToken = event.cookies.get(SESSION_COOKIE);
+	const authorization = isApi(event.url) ? event.request.headers.get('authorization') : null;
+	if (!cookieToken && !authorization) return resolve(event);
+
+	if (authorization) {
+		const match = /^Bearer\s+(\S+)$/i.exec(authorization.trim());
+		const token = match ? await authenticateToken(event.locals.em, match[1]) : null;
+		if (!token) {
+			event.locals.badBearer = true;
+			return resolve(event);
+		}
+		const { id, email, displayName, roles } = token.user;
+		event.locals.user = { id, email, displayName, roles };
+		event.locals.apiToken = { id: token.id, scopes: token.scopes };
+		return resolve(event);
+	}
+
+	const lucia = await appLucia();
+	const { session, user } = await validateSessionToken(lucia, cookieToken!);
+	if (!session || user.suspendedAt) {
+		if (session) await lucia.invalidateSession(session.id);
+		clearSessionCookie(event.cookies, lucia);
+		return resolve(event);
+	}
+	// lucia extended the session (less than half its lifetime was left): send the cookie again.
+	if (session.fresh) setSessionCookie(event.cookies, lucia, cookieToken!, session.expiresAt);
+	event.locals.session = session;
+	event.locals.user = { id: user.id, email: user.email, displayName: user.displayName, roles: user.roles };
+	return resolve(event);
+};
+
+/**
+ * Applies the access policy (src/lib/server/auth/access-policy.ts) to every request before any route
+ * code runs: 401 without valid credentials, 403 with credentials that lack the right.
+ */
+export const handleGuard: Handle = async ({ event, resolve }) => {
+	const routeId = event.route.id;
+	if (routeId === null) return resolve(event);
+	const api = isApi(event.url);
+	const method = event.request.method;
+	const action = method === 'POST' && !api ? formActionName(event.url) : undefined;
+	const rule = findAccessRule(routeId, method, action);
+	if (!rule) {
+		logger.error({ routeId, method, action }, 'route missing from the access policy');
+		if (api) return problem(403, 'This route is not open to anyone.');
+		error(403, 'This page is not open to anyone.');
+	}
+	if (api && event.locals.badBearer) {
+		return problem(
+			401,
+			'The API token is unknown, revoked or expired.',
+			{},
+			{
+				'www-authenticate': 'Bearer error="invalid_token"'
+			}
+		);
+	}
+	const { user, apiToken } = event.locals;
+	const credentials: Credentials | null = user
+		? { roles: user.roles, via: apiToken ? { scopes: apiToken.scopes } : 'session' }
+		: null;
+	const decision = await decideAccess(rule, credentials, () =>
+		groupStandingFor(event.locals.em, user!.id, event.params.slug)
+	);
+	if (decision.allow) return resolve(event);
+	if (api) {
+		const headers: Record<string, string> = decision.status === 401 ? { 'www-authenticate': 'Bearer' } : {};
+		return problem(decision.status, decision.reason, {}, headers);
+	}
+	if (decision.status === 401 && method === 'GET') {
+		redirect(303, `/sign-in?next=${encodeURIComponent(event.url.pathname + event.url.search)}`);
+	}
+	error(decision.status, decision.reason);
+};
