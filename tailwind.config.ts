@@ -1,10 +1,10 @@
 import type { Config } from 'tailwindcss';
 
 /**
- * Candlebook's design tokens. Colours resolve to CSS custom properties (set in src/app.css for the light
- * and dark themes), so one class works in both themes.
+ * Candlebook's design tokens. Colours resolve to CSS custom properties (set in src/app.css with both
+ * theme values), so one class works in both themes; opacity modifiers mix with transparent.
  */
-const token = (name: string) => `rgb(var(--cb-${name}) / <alpha-value>)`;
+const token = (name: string) => `var(--cb-${name})`;
 
 export default {
 	content: ['./src/**/*.{html,svelte,ts}'],
