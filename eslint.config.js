@@ -40,7 +40,7 @@ export default ts.config(
 		}
 	},
 	{
-		files: ['src/lib/calibration/**/*.ts', 'src/lib/review/**/*.ts'],
+		files: ['src/lib/calibration/**/*.ts', 'src/lib/review/**/*.ts', 'src/lib/publishing/**/*.ts'],
 		ignores: ['**/*.test.ts'],
 		rules: { 'no-restricted-imports': ['error', FRAMEWORK_IMPORTS] }
 	}

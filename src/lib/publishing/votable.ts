@@ -1,0 +1,131 @@
+/**
+ * IVOA VOTable 1.4 (https://www.ivoa.net/documents/VOTable/) for a calibrator revision: one TABLE whose
+ * FIELDs carry VOUnit units and UCD1+ words, with the revision's digest, licence and required
+ * citations as INFO elements, so a VO client (astropy, TOPCAT…) reads the numbers with their meaning.
+ */
+import type { CalibratorRevisionContent } from '../calibration/frozen-content';
+
+export interface VoTableProvenance {
+	digest: string;
+	licence: string;
+	requiredCitations: readonly string[];
+	title: string;
+}
+
+interface FieldMeta {
+	datatype: 'double' | 'char';
+	unit: string | null;
+	ucd: string;
+	description: string;
+}
+
+const STATIC_META: Record<string, FieldMeta> = {
+	star: { datatype: 'char', unit: null, ucd: 'meta.id;meta.main', description: 'Star name' },
+	cross_id: {
+		datatype: 'char',
+		unit: null,
+		ucd: 'meta.id.cross',
+		description: 'Cross identification (e.g. Gaia DR3 source_id)'
+	},
+	population: { datatype: 'char', unit: null, ucd: 'meta.code', description: 'Candlebook population id' },
+	period_days: { datatype: 'double', unit: 'd', ucd: 'time.period', description: 'Pulsation period' },
+	period_err_days: { datatype: 'double', unit: 'd', ucd: 'stat.error;time.period', description: 'Error of the period' },
+	parallax_mas: {
+		datatype: 'double',
+		unit: 'mas',
+		ucd: 'pos.parallax.trig',
+		description: 'Parallax as catalogued (zero point not removed)'
+	},
+	parallax_err_mas: {
+		datatype: 'double',
+		unit: 'mas',
+		ucd: 'stat.error;pos.parallax.trig',
+		description: 'Error of the parallax'
+	},
+	mu_host: { datatype: 'double', unit: 'mag', ucd: 'phot.mag.distMod', description: 'Distance modulus of the host' },
+	mu_host_err: {
+		datatype: 'double',
+		unit: 'mag',
+		ucd: 'stat.error;phot.mag.distMod',
+		description: 'Error of the host distance modulus'
+	},
+	host: { datatype: 'char', unit: null, ucd: 'meta.id', description: 'Host galaxy or cluster' },
+	ebv: { datatype: 'double', unit: 'mag', ucd: 'phot.color.excess', description: 'E(B-V) colour excess' },
+	ebv_err: { datatype: 'double', unit: 'mag', ucd: 'stat.error;phot.color.excess', description: 'Error of E(B-V)' },
+	feh: { datatype: 'double', unit: null, ucd: 'phys.abund.Fe', description: '[Fe/H] (dex)' },
+	feh_err: { datatype: 'double', unit: null, ucd: 'stat.error;phys.abund.Fe', description: 'Error of [Fe/H] (dex)' },
+	reference: { datatype: 'char', unit: null, ucd: 'meta.bib', description: 'Literature reference for the row' }
+};
+
+export function fieldMeta(field: string): FieldMeta {
+	const known = STATIC_META[field];
+	if (known) return known;
+	const error = /^mag_err_(.+)$/.exec(field);
+	if (error)
+		return {
+			datatype: 'double',
+			unit: 'mag',
+			ucd: 'stat.error;phot.mag',
+			description: `Error of the mean magnitude in ${error[1]}`
+		};
+	const band = /^mag_(.+)$/.exec(field);
+	if (band) return { datatype: 'double', unit: 'mag', ucd: 'phot.mag', description: `Mean magnitude in ${band[1]}` };
+	return { datatype: 'char', unit: null, ucd: 'meta.note', description: field };
+}
+
+export function escapeXml(text: string): string {
+	return (
+		text
+			.replaceAll('&', '&amp;')
+			.replaceAll('<', '&lt;')
+			.replaceAll('>', '&gt;')
+			.replaceAll('"', '&quot;')
+			.replaceAll("'", '&apos;')
+			// XML 1.0 forbids control characters other than tab, line feed and carriage return, even escaped.
+			.split('')
+			.filter((char) => char.charCodeAt(0) >= 0x20 || char === '\t' || char === '\n' || char === '\r')
+			.join('')
+	);
+}
+
+const attribute = (name: string, value: string | null) => (value === null ? '' : ` ${name}="${escapeXml(value)}"`);
+
+function cell(value: unknown, meta: FieldMeta): string {
+	if (value === null || value === undefined) return '<TD/>';
+	if (meta.datatype === 'double') return `<TD>${typeof value === 'number' ? String(value) : ''}</TD>`;
+	return `<TD>${escapeXml(String(value))}</TD>`;
+}
+
+/** The revision as a VOTable 1.4 document (TABLEDATA serialisation). Empty cells are nulls. */
+export function calibratorRevisionToVoTable(content: CalibratorRevisionContent, provenance: VoTableProvenance): string {
+	const fields = content.columns.map((column) => column.field);
+	const metas = fields.map(fieldMeta);
+	const lines = [
+		'<?xml version="1.0" encoding="UTF-8"?>',
+		'<VOTABLE version="1.4" xmlns="http://www.ivoa.net/xml/VOTable/v1.3">',
+		`<RESOURCE name="${escapeXml(`${content.calibrator_set}@${content.revision}`)}" type="results">`,
+		`<DESCRIPTION>${escapeXml(provenance.title)}</DESCRIPTION>`,
+		`<INFO name="calibrator_set" value="${escapeXml(content.calibrator_set)}"/>`,
+		`<INFO name="revision" value="${content.revision}"/>`,
+		`<INFO name="digest" value="${escapeXml(provenance.digest)}"/>`,
+		`<INFO name="source_file_digest" value="${escapeXml(content.source_file.digest)}"/>`,
+		`<INFO name="licence" value="${escapeXml(provenance.licence)}"/>`,
+		...provenance.requiredCitations.map(
+			(citation) => `<INFO name="required_citation" value="${escapeXml(citation)}"/>`
+		),
+		`<TABLE name="calibrators" nrows="${content.rows.length}">`,
+		...fields.map((field, i) => {
+			const meta = metas[i];
+			const arraysize = meta.datatype === 'char' ? ' arraysize="*"' : '';
+			return `<FIELD name="${escapeXml(field)}" datatype="${meta.datatype}"${arraysize}${attribute('unit', meta.unit)} ucd="${meta.ucd}"><DESCRIPTION>${escapeXml(meta.description)}</DESCRIPTION></FIELD>`;
+		}),
+		'<DATA><TABLEDATA>',
+		...content.rows.map((row) => `<TR>${fields.map((field, i) => cell(row.values[field], metas[i])).join('')}</TR>`),
+		'</TABLEDATA></DATA>',
+		'</TABLE>',
+		'</RESOURCE>',
+		'</VOTABLE>',
+		''
+	];
+	return lines.join('\n');
+}
