@@ -7,12 +7,20 @@ import { z } from 'zod';
 export interface ApiSchemaMeta {
 	id: string;
 	description?: string;
+	/** Operations (e.g. `POST /api/v1/fits`) whose request body this schema validates. */
+	requestFor?: string[];
+	/** Operations whose successful (2xx) JSON response this schema describes. */
+	responseFor?: string[];
 }
 
 export const apiSchemas = z.registry<ApiSchemaMeta>();
 
+/** Every registered schema's metadata, in registration order (the OpenAPI generator reads it). */
+export const registeredApiSchemas: ApiSchemaMeta[] = [];
+
 export function registerApiSchema<T extends z.ZodType>(schema: T, meta: ApiSchemaMeta): T {
 	apiSchemas.add(schema, meta);
+	registeredApiSchemas.push(meta);
 	return schema;
 }
 

@@ -1,0 +1,39 @@
+import { Validator } from '@seriousme/openapi-schema-validator';
+import { describe, expect, test } from 'vitest';
+import '../../src/lib/server/api/account-schemas';
+import { buildOpenApiDocument, openApiPath } from '../../src/lib/server/api/openapi';
+import { ACCESS_POLICY } from '../../src/lib/server/auth/access-policy';
+
+describe('the generated OpenAPI document', () => {
+	const document = buildOpenApiDocument('http://127.0.0.1:3000');
+
+	test('is valid OpenAPI 3.1 by the official JSON Schema (@seriousme/openapi-schema-validator)', async () => {
+		const validator = new Validator();
+		const result = await validator.validate(document);
+		expect(result.errors ?? []).toEqual([]);
+		expect(result.valid).toBe(true);
+		expect(validator.version).toBe('3.1');
+	});
+
+	test('has one operation for every API row of the access policy', () => {
+		const expected = ACCESS_POLICY.filter((rule) => rule.route.startsWith('/api/') && rule.method !== '*')
+			.map((rule) => `${rule.method} ${openApiPath(rule.route)}`)
+			.filter((key) => !key.endsWith('null'))
+			.sort();
+		const paths = document.paths as Record<string, Record<string, unknown>>;
+		const actual = Object.entries(paths)
+			.flatMap(([path, operations]) => Object.keys(operations).map((method) => `${method.toUpperCase()} ${path}`))
+			.sort();
+		expect(actual).toEqual(expected);
+		expect(actual.length).toBeGreaterThan(0);
+	});
+
+	test('carries the registered zod schemas as components, with the problem type for errors', () => {
+		const schemas = (document.components as { schemas: Record<string, unknown> }).schemas;
+		expect(Object.keys(schemas)).toEqual(expect.arrayContaining(['Problem', 'FieldError']));
+		expect(schemas.Problem).toMatchObject({
+			type: 'object',
+			required: expect.arrayContaining(['type', 'title', 'status'])
+		});
+	});
+});
