@@ -4,13 +4,18 @@ import { PROBLEM_CONTENT_TYPE, problem } from '$lib/server/api/problem';
 import { handleAuth, handleGuard } from '$lib/server/auth/request-hooks';
 import { getConfig } from '$lib/server/config';
 import { closeOrm, getOrm } from '$lib/server/db';
+import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
 
 export const init: ServerInit = async () => {
-	getConfig();
+	const config = getConfig();
 	await getOrm();
+	// Work queued fits from the start, including any left over from before a restart.
+	if (config.CANDLEBOOK_IN_PROCESS_WORKER === 'true') {
+		getAppJobQueue().catch((error: unknown) => logger.error({ err: error }, 'the job queue did not start'));
+	}
 	// adapter-node keeps the process alive while the pool is open; close it when the server stops.
-	process.once('sveltekit:shutdown', () => void closeOrm());
+	process.once('sveltekit:shutdown', () => void stopAppJobQueue().finally(() => closeOrm()));
 };
 
 const handleRequestLog: Handle = async ({ event, resolve }) => {

@@ -1,8 +1,11 @@
 import type { Pathname } from '$app/types';
 
+/** Paths of pages (API paths are never navigation targets, and would overflow `resolve`'s overloads). */
+export type PagePath = Exclude<Pathname, `/api/${string}`>;
+
 /** Primary navigation. Only pages that exist are listed; each capability adds its own entry. */
 export interface NavigationItem {
-	href: Pathname;
+	href: PagePath;
 	label: string;
 }
 

@@ -25,7 +25,24 @@ const ConfigSchema = z.object({
 	// OWASP's argon2id minimum (m = 19 MiB, t = 2, p = 1), from memory; tests lower it to stay fast.
 	CANDLEBOOK_ARGON2_MEMORY_KIB: z.coerce.number().int().min(1024).default(19_456),
 	CANDLEBOOK_ARGON2_PASSES: z.coerce.number().int().min(1).default(2),
-	CANDLEBOOK_SESSION_DAYS: z.coerce.number().int().min(1).max(400).default(30)
+	CANDLEBOOK_SESSION_DAYS: z.coerce.number().int().min(1).max(400).default(30),
+	/** Most data rows one calibrator revision may hold. */
+	CANDLEBOOK_MAX_UPLOAD_ROWS: z.coerce.number().int().min(1).max(1_000_000).default(20_000),
+	/** Fits with at least this many bootstrap resamples, or this many stars, run as background jobs. */
+	CANDLEBOOK_BACKGROUND_BOOTSTRAP: z.coerce.number().int().min(1).default(200),
+	CANDLEBOOK_BACKGROUND_STARS: z.coerce.number().int().min(1).default(5000),
+	/** Whether the app works the job queue itself (`false` when separate workers do). */
+	CANDLEBOOK_IN_PROCESS_WORKER: z.enum(['true', 'false']).default('true'),
+	/** S3-compatible object storage for original uploads; omit S3_ENDPOINT for AWS itself. */
+	S3_ENDPOINT: z.url({ protocol: /^https?$/, error: 'must be an http(s) URL' }).optional(),
+	S3_REGION: z.string().min(1).default('us-east-1'),
+	S3_BUCKET: z.string().min(3).max(63).default('candlebook-uploads'),
+	S3_ACCESS_KEY_ID: z.string().min(1).optional(),
+	S3_SECRET_ACCESS_KEY: z.string().min(1).optional(),
+	S3_FORCE_PATH_STYLE: z
+		.enum(['true', 'false'])
+		.default('true')
+		.transform((value) => value === 'true')
 });
 
 export type AppConfig = z.infer<typeof ConfigSchema>;

@@ -1,4 +1,5 @@
 import { defineEntity, type InferEntity } from '@mikro-orm/core';
+import { REGISTRY_AUDIT_KINDS } from './registry-audit-kinds';
 
 export const AUDIT_KINDS = [
 	'sign-in',
@@ -21,7 +22,8 @@ export const AUDIT_KINDS = [
 	'group-member-added',
 	'group-member-removed',
 	'token-created',
-	'token-revoked'
+	'token-revoked',
+	...REGISTRY_AUDIT_KINDS
 ] as const;
 export type AuditKind = (typeof AUDIT_KINDS)[number];
 

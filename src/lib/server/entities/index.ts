@@ -3,11 +3,21 @@ import { AuditEvent } from './audit-event.entity';
 import { GroupMembership } from './group-membership.entity';
 import { Group } from './group.entity';
 import { OneTimeLink } from './one-time-link.entity';
+import { REGISTRY_ENTITIES } from './registry-entities';
 import { Session } from './session.entity';
 import { User } from './user.entity';
 
 /** Every entity, listed explicitly (no globs: the CLI, scripts and Vite must see the same list). */
-export const ENTITIES = [User, Session, Group, GroupMembership, ApiToken, OneTimeLink, AuditEvent];
+export const ENTITIES = [
+	User,
+	Session,
+	Group,
+	GroupMembership,
+	ApiToken,
+	OneTimeLink,
+	AuditEvent,
+	...REGISTRY_ENTITIES
+];
 
 export { ApiToken, AuditEvent, Group, GroupMembership, OneTimeLink, Session, User };
 export { ROLES } from './user.entity';
@@ -20,3 +30,13 @@ export type { GroupMembershipEntity, GroupStanding } from './group-membership.en
 export type { ApiTokenEntity, TokenScope } from './api-token.entity';
 export type { OneTimeLinkEntity, LinkPurpose } from './one-time-link.entity';
 export type { AuditEventEntity, AuditKind } from './audit-event.entity';
+export { AnalysisJob } from './analysis-job.entity';
+export { CalibratorRevision } from './calibrator-revision.entity';
+export { CalibratorSet } from './calibrator-set.entity';
+export { Proposal } from './proposal.entity';
+export { ProposalComment } from './proposal-comment.entity';
+export { Relation } from './relation.entity';
+export { RelationVersion } from './relation-version.entity';
+export { RelationWatch } from './relation-watch.entity';
+export { Setting } from './setting.entity';
+export { VersionLifecycle } from './version-lifecycle.entity';

@@ -14,6 +14,7 @@ import { addMember, createGroup, GroupError } from '../accounts/group-service';
 import { EmailSchema, GroupSlugSchema, NewPasswordSchema, RolesSchema, ScopesSchema } from '../accounts/schemas';
 import { createToken, listTokens, revokeToken } from '../accounts/token-service';
 import { GroupMembership, User } from '../entities/index';
+import { setSetting } from '../registry/settings';
 import { localStateDir, openLocalDatabase } from './local-database';
 import { PostgresCluster, readJson, type DatabaseCredentials } from './postgres-cluster';
 
@@ -30,7 +31,8 @@ const USAGE = `npm run admin -- <verb> [options]
   add-member    --group SLUG --email E [--manager]
   create-token  --email E --name N [--scopes read:private,write,review] [--days 90]   (0 days = never expires)
   list-tokens   [--email E]
-  revoke-token  --id TOKEN_ID`;
+  revoke-token  --id TOKEN_ID
+  set-approvals --count N            (approvals a new relation's versions need unless it says otherwise)`;
 
 const OPERATOR: AuditContext = { actorId: null, clientAddress: 'admin-cli' };
 
@@ -118,6 +120,7 @@ async function run(verb: string, args: string[], em: EntityManager): Promise<voi
 			scopes: { type: 'string' },
 			days: { type: 'string' },
 			id: { type: 'string' },
+			count: { type: 'string' },
 			origin: { type: 'string' }
 		},
 		strict: true
@@ -261,6 +264,14 @@ async function run(verb: string, args: string[], em: EntityManager): Promise<voi
 			const id = need(values.id, 'id');
 			if (!(await revokeToken(em, id, null, OPERATOR))) throw new UsageError(`no active token ${id}`);
 			console.log(`revoked ${id}`);
+			return;
+		}
+		case 'set-approvals': {
+			const count = Number(need(values.count, 'count'));
+			if (!Number.isInteger(count) || count < 1 || count > 10)
+				throw new UsageError('--count must be a whole number from 1 to 10');
+			await setSetting(em, null, 'default_required_approvals', count);
+			console.log(`new relations need ${count} approval${count === 1 ? '' : 's'} per version`);
 			return;
 		}
 		default:

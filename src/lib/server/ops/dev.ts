@@ -3,6 +3,7 @@ import { spawn } from 'node:child_process';
 import { join } from 'node:path';
 import { startMailCatcher } from '../mail/capture-server';
 import { localStateDir, openLocalDatabase } from './local-database';
+import { hasOwnObjectStore, startLocalObjectStore } from './local-object-store';
 import { migrateDatabase, seedDemo } from './migrate';
 import { PROJECT_ROOT } from './project-paths';
 import { onShutdown } from './shutdown';
@@ -10,6 +11,11 @@ import { onShutdown } from './shutdown';
 const database = await openLocalDatabase();
 onShutdown(() => database.stop());
 await migrateDatabase(database.url);
+if (!hasOwnObjectStore(process.env)) {
+	const objects = await startLocalObjectStore(join(localStateDir(), 'objects'));
+	onShutdown(() => void objects.close());
+	Object.assign(process.env, objects.env);
+}
 await seedDemo(database.url);
 const mailDir = join(localStateDir(), 'mail');
 const mail = process.env.SMTP_URL ? null : await startMailCatcher({ dir: mailDir });

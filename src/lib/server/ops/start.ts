@@ -1,6 +1,7 @@
 /**
  * `npm start`: the project's own PostgreSQL on 127.0.0.1 → migrations → demo seed → build if stale →
- * the production server, with a local fake SMTP server catching its mail (unless SMTP_URL is set).
+ * the production server, with a local fake SMTP server catching its mail (unless SMTP_URL is set) and a
+ * local fake S3 server keeping uploaded files (unless S3_* names an object store).
  * Ctrl-C stops the server and then the database.
  */
 import { spawn } from 'node:child_process';
@@ -8,16 +9,18 @@ import { join } from 'node:path';
 import { buildIfStale } from './build';
 import { startMailCatcher, type MailCatcher } from '../mail/capture-server';
 import { localStateDir, openLocalDatabase } from './local-database';
+import { hasOwnObjectStore, startLocalObjectStore, type LocalObjectStore } from './local-object-store';
 import { migrateDatabase, seedDemo } from './migrate';
 import { PROJECT_ROOT } from './project-paths';
 import { serverEnvironment } from './server-environment';
 import { onShutdown } from './shutdown';
 
 const database = await openLocalDatabase();
-const running: { server?: ReturnType<typeof spawn>; mail?: MailCatcher } = {};
+const running: { server?: ReturnType<typeof spawn>; mail?: MailCatcher; objects?: LocalObjectStore } = {};
 onShutdown(() => {
 	running.server?.kill('SIGKILL');
 	void running.mail?.close();
+	void running.objects?.close();
 	database.stop();
 });
 console.log(`[candlebook] PostgreSQL on 127.0.0.1:${database.port}, data in ${database.location}`);
@@ -28,6 +31,12 @@ console.log(
 		? `[candlebook] applied migrations: ${applied.join(', ')}`
 		: '[candlebook] database schema is up to date'
 );
+if (!hasOwnObjectStore(process.env)) {
+	running.objects = await startLocalObjectStore(join(localStateDir(), 'objects'));
+	// The demo seed uploads its invented files too, so it needs the store before the server does.
+	Object.assign(process.env, running.objects.env);
+	console.log(`[candlebook] uploaded files go to a local fake S3 server (${running.objects.env.S3_ENDPOINT})`);
+}
 await seedDemo(database.url);
 buildIfStale();
 
@@ -56,6 +65,7 @@ process.on('SIGINT', stopServer);
 process.on('SIGTERM', stopServer);
 server.on('exit', (code, signal) => {
 	void running.mail?.close();
+	void running.objects?.close();
 	database.stop();
 	process.exit(signal ? 0 : (code ?? 0));
 });

@@ -11,11 +11,12 @@ import { join } from 'node:path';
 import { startMailCatcher } from '../mail/capture-server';
 import { buildApp } from './build';
 import { openThrowawayDatabase } from './local-database';
+import { startLocalObjectStore } from './local-object-store';
 import { migrateDatabase } from './migrate';
 import { freePort } from './postgres-cluster';
 import { PROJECT_ROOT } from './project-paths';
 import { onShutdown } from './shutdown';
-import { CHROMIUM, ensureSystemPackages, POSTGRESQL, PYTHON3_ASTROPY } from './system-packages';
+import { CHROMIUM, ensureSystemPackages, LIBXML2_UTILS, POSTGRESQL, PYTHON3_ASTROPY } from './system-packages';
 
 interface RunnerSummary {
 	runner: string;
@@ -24,13 +25,15 @@ interface RunnerSummary {
 	skipped: number;
 }
 
-ensureSystemPackages([POSTGRESQL, CHROMIUM, PYTHON3_ASTROPY]);
+ensureSystemPackages([POSTGRESQL, CHROMIUM, PYTHON3_ASTROPY, LIBXML2_UTILS]);
 const summaryDir = mkdtempSync(join(tmpdir(), 'candlebook-test-summary-'));
 const database = await openThrowawayDatabase();
 const mailDir = join(summaryDir, 'mail');
 const mail = await startMailCatcher({ dir: mailDir });
+const objects = await startLocalObjectStore(join(summaryDir, 'objects'));
 onShutdown(() => {
 	void mail.close();
+	void objects.close();
 	database.stop();
 	rmSync(summaryDir, { recursive: true, force: true });
 });
@@ -46,7 +49,8 @@ const env: NodeJS.ProcessEnv = {
 	// Password hashing at the lowest cost the configuration accepts: tests check behaviour, not
 	// hashing strength, and standard parameters would make each sign-in in a test cost ~50 ms.
 	CANDLEBOOK_ARGON2_MEMORY_KIB: '1024',
-	CANDLEBOOK_ARGON2_PASSES: '1'
+	CANDLEBOOK_ARGON2_PASSES: '1',
+	...objects.env
 };
 const bin = (name: string) => join(PROJECT_ROOT, 'node_modules', '.bin', name);
 // Asynchronous, so the fake SMTP server in this process keeps answering while the runners work.
@@ -90,4 +94,5 @@ for (const summary of summaries) {
 	console.log(`${summary.runner}: ${summary.passed} passed, ${summary.failed} failed, ${summary.skipped} skipped`);
 }
 void mail.close();
+void objects.close();
 process.exit(failed ? 1 : 0);

@@ -1,0 +1,38 @@
+import { defineEntity, type InferEntity } from '@mikro-orm/core';
+import { CalibratorSet } from './calibrator-set.entity';
+import { User } from './user.entity';
+
+/**
+ * One uploaded revision of a calibrator set. Insert-only (a trigger refuses UPDATE and DELETE):
+ * `content` is the sealed canonical content the engine digests, and the original file lives in object
+ * storage under `sourceKey`.
+ */
+export const CalibratorRevision = defineEntity({
+	name: 'CalibratorRevision',
+	tableName: 'app_calibrator_revision',
+	uniques: [{ properties: ['calibratorSet', 'number'] }],
+	properties: (p) => ({
+		id: p
+			.uuid()
+			.primary()
+			.onCreate(() => crypto.randomUUID()),
+		calibratorSet: p.manyToOne(CalibratorSet).deleteRule('restrict'),
+		number: p.integer(),
+		/** `sha256:<hex>` of the canonical content (calibrator_set, revision, source file, columns, rows). */
+		digest: p.string().length(71),
+		/** Lowercase hex sha256 of the stored original file. */
+		sourceSha256: p.string().length(64),
+		sourceKey: p.string().length(300),
+		sourceName: p.string().length(200),
+		sourceMediaType: p.string().length(100),
+		sourceBytes: p.integer(),
+		rowCount: p.integer(),
+		/** CalibratorRevisionContent with its digest, exactly as served. */
+		content: p.json<Record<string, unknown>>(),
+		note: p.text().default(''),
+		uploadedBy: p.manyToOne(User).deleteRule('restrict'),
+		createdAt: p.datetime().onCreate(() => new Date())
+	})
+});
+
+export type CalibratorRevisionEntity = InferEntity<typeof CalibratorRevision>;

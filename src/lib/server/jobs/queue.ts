@@ -1,0 +1,41 @@
+import PgBoss from 'pg-boss';
+import type { MikroORM } from '@mikro-orm/postgresql';
+import { logger } from '../logger';
+import { runFitJob, type FitQueue } from '../registry/fits';
+
+/**
+ * The background job queue: pg-boss in the application's own PostgreSQL (schema `pgboss`). The app
+ * queues large fits; any process running a worker (the app itself, or `src/lib/server/jobs/worker.ts`
+ * on another machine) picks them up. Later analyses add their own queues here.
+ */
+export const FIT_QUEUE = 'candlebook-fit';
+
+export interface FitMessage {
+	jobId: string;
+}
+
+export async function startJobQueue(databaseUrl: string): Promise<PgBoss> {
+	const boss = new PgBoss({ connectionString: databaseUrl, schema: 'pgboss', max: 4 });
+	boss.on('error', (error) => logger.error({ err: error }, 'job queue error'));
+	await boss.start();
+	await boss.createQueue(FIT_QUEUE);
+	return boss;
+}
+
+export function fitQueueOf(boss: PgBoss): FitQueue {
+	return {
+		enqueueFit: (jobId) =>
+			boss.send(FIT_QUEUE, { jobId } satisfies FitMessage, { retryLimit: 2, retryDelay: 5, expireInMinutes: 60 })
+	};
+}
+
+/** Works fit messages one at a time; the job row carries state, progress and result. */
+export async function startFitWorker(boss: PgBoss, orm: MikroORM, pollingIntervalSeconds = 2): Promise<string> {
+	return boss.work<FitMessage>(FIT_QUEUE, { batchSize: 1, pollingIntervalSeconds }, async (jobs) => {
+		for (const job of jobs) {
+			logger.info({ jobId: job.data.jobId }, 'fit started');
+			await runFitJob(orm.em.fork(), job.data.jobId);
+			logger.info({ jobId: job.data.jobId }, 'fit finished');
+		}
+	});
+}

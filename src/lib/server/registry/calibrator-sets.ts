@@ -1,0 +1,250 @@
+import { createHash } from 'node:crypto';
+import type { EntityManager } from '@mikro-orm/postgresql';
+import { LockMode } from '@mikro-orm/core';
+import {
+	CalibrationInputError,
+	calibratorRowsToCsv,
+	DEFAULT_TABLE_LIMITS,
+	diffCalibratorRevisions,
+	parseCalibratorTable,
+	sealCalibratorRevision,
+	type CalibratorRevisionContent,
+	type CanonicalRow,
+	type ColumnMapping,
+	type MappedColumn,
+	type RevisionDiff,
+	type TableIssue,
+	type TableLimits
+} from '../../calibration/index';
+import { CalibratorRevision } from '../entities/calibrator-revision.entity';
+import { CalibratorSet } from '../entities/calibrator-set.entity';
+import { Group } from '../entities/index';
+import type { ObjectStorage } from '../storage/object-storage';
+import { belongsTo, type Actor } from './actor';
+import { auditRegistry } from './audit';
+import { conflict, forbidden, invalid, notFound, RegistryError } from './errors';
+import { decodeUtf8, formulaCellIssues, issuesToFieldErrors } from './upload-checks';
+
+export const UPLOAD_MEDIA_TYPES = ['text/csv', 'text/tab-separated-values'] as const;
+export type UploadMediaType = (typeof UPLOAD_MEDIA_TYPES)[number];
+export const SOURCE_PREFIX = 'calibrator-sources';
+
+export interface CreateCalibratorSetInput {
+	slug: string;
+	title: string;
+	description: string;
+	group: string;
+	licence: string;
+	citations: string[];
+}
+
+export async function createCalibratorSet(em: EntityManager, actor: Actor, input: CreateCalibratorSetInput) {
+	const group = await em.findOne(Group, { slug: input.group });
+	if (!group) throw invalid(`There is no group called ${input.group}.`, [{ path: 'group', message: 'unknown group' }]);
+	if (!(await belongsTo(em, actor, group.id)))
+		throw forbidden(`Only members of ${group.slug} may create calibrator sets for it.`);
+	return em.transactional(async (tx) => {
+		if (await tx.count(CalibratorSet, { slug: input.slug }))
+			throw conflict('slug-taken', `A calibrator set called ${input.slug} exists already.`);
+		const set = tx.create(CalibratorSet, {
+			slug: input.slug,
+			title: input.title,
+			description: input.description,
+			group,
+			licence: input.licence,
+			citations: input.citations,
+			createdBy: actor.id
+		});
+		await tx.flush();
+		await auditRegistry(tx, 'calibrator-set-created', actor, set.slug, { group: group.slug, licence: set.licence });
+		return set;
+	});
+}
+
+export async function findCalibratorSet(em: EntityManager, slug: string) {
+	const set = await em.findOne(CalibratorSet, { slug }, { populate: ['group'] });
+	if (!set) throw notFound(`calibrator set called ${slug}`);
+	return set;
+}
+
+export interface UploadInput {
+	bytes: Uint8Array;
+	mediaType: string;
+	fileName: string;
+	mapping: ColumnMapping;
+	note: string;
+}
+
+export interface UploadLimits extends TableLimits {
+	maxBytes: number;
+}
+
+export const DEFAULT_UPLOAD_LIMITS: UploadLimits = { ...DEFAULT_TABLE_LIMITS, maxBytes: 32 * 1024 * 1024 };
+
+function refuseTable(issues: TableIssue[], total = issues.length): never {
+	throw new RegistryError(
+		422,
+		'invalid-table',
+		`The table was not stored: ${total} problem${total === 1 ? '' : 's'} (nothing was saved).`,
+		issuesToFieldErrors(issues),
+		{ issues }
+	);
+}
+
+/**
+ * Validates an upload completely, then stores the revision row and the original file together:
+ * either both exist afterwards or neither does.
+ */
+export async function uploadRevision(
+	em: EntityManager,
+	storage: ObjectStorage,
+	actor: Actor,
+	slug: string,
+	input: UploadInput,
+	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
+) {
+	const set = await findCalibratorSet(em, slug);
+	if (!(await belongsTo(em, actor, set.group.id)))
+		throw forbidden(`Only members of ${set.group.slug} may upload revisions of ${set.slug}.`);
+	const mediaType = input.mediaType.split(';')[0].trim().toLowerCase();
+	if (!(UPLOAD_MEDIA_TYPES as readonly string[]).includes(mediaType)) {
+		throw new RegistryError(415, 'unsupported-media-type', 'Send the table as text/csv or text/tab-separated-values.');
+	}
+	if (input.bytes.byteLength > limits.maxBytes) {
+		throw new RegistryError(413, 'too-large', `The file is larger than ${limits.maxBytes} bytes.`);
+	}
+	const decoded = decodeUtf8(input.bytes);
+	if (!decoded.ok) refuseTable([decoded.issue]);
+	const table = parseCalibratorTable(decoded.text, input.mapping, limits);
+	if (table.issues.length > 0) refuseTable(table.issues);
+	const expected = mediaType === 'text/csv' ? ',' : '\t';
+	if (table.delimiter !== expected) {
+		const named = table.delimiter === '\t' ? 'tabs' : `"${table.delimiter}"`;
+		refuseTable([
+			{
+				line: 1,
+				column: null,
+				value: null,
+				reason: `the file is sent as ${mediaType} but its columns are separated by ${named}`
+			}
+		]);
+	}
+	const formulas = formulaCellIssues(table.columns, table.rows);
+	if (formulas.length > 0) refuseTable(formulas);
+
+	const sourceSha = sha256Hex(input.bytes);
+	const sourceKey = `${SOURCE_PREFIX}/sha256/${sourceSha}`;
+	const existedBefore = await storage.exists(sourceKey);
+	let stored = false;
+	try {
+		const revision = await em.transactional(async (tx) => {
+			// One upload at a time per set: numbers are dense and never reused.
+			await tx.findOneOrFail(CalibratorSet, set.id, { lockMode: LockMode.PESSIMISTIC_WRITE });
+			const last = await tx.findOne(
+				CalibratorRevision,
+				{ calibratorSet: set.id },
+				{ orderBy: { number: 'desc' }, fields: ['number'] }
+			);
+			const number = (last?.number ?? 0) + 1;
+			const content = sealContent(set.slug, number, input, mediaType, sourceSha, table.columns, table.rows);
+			const revision = tx.create(CalibratorRevision, {
+				calibratorSet: set.id,
+				number,
+				digest: content.digest,
+				sourceSha256: sourceSha,
+				sourceKey,
+				sourceName: input.fileName,
+				sourceMediaType: mediaType,
+				sourceBytes: input.bytes.byteLength,
+				rowCount: table.rows.length,
+				content,
+				note: input.note,
+				uploadedBy: actor.id
+			});
+			await tx.flush();
+			await auditRegistry(tx, 'calibrator-revision-uploaded', actor, `${set.slug}#${number}`, {
+				digest: content.digest,
+				sourceSha256: sourceSha,
+				rows: table.rows.length
+			});
+			// Last step before commit: a failed put rolls the row back.
+			await storage.putContentAddressed(SOURCE_PREFIX, input.bytes, mediaType);
+			stored = true;
+			return revision;
+		});
+		return revision;
+	} catch (error) {
+		if (stored && !existedBefore) await storage.delete(sourceKey).catch(() => undefined);
+		throw error;
+	}
+}
+
+function sealContent(
+	slug: string,
+	number: number,
+	input: UploadInput,
+	mediaType: string,
+	sourceSha: string,
+	columns: MappedColumn[],
+	rows: CanonicalRow[]
+): CalibratorRevisionContent & { digest: string } {
+	try {
+		return sealCalibratorRevision({
+			calibrator_set: slug,
+			revision: number,
+			source_file: { name: input.fileName, media_type: mediaType, digest: `sha256:${sourceSha}` },
+			columns,
+			rows
+		});
+	} catch (error) {
+		if (error instanceof CalibrationInputError) {
+			throw invalid(
+				'The table does not make a valid revision.',
+				error.issues.map((issue) => ({ path: issue.field, message: issue.message }))
+			);
+		}
+		throw error;
+	}
+}
+
+function sha256Hex(bytes: Uint8Array): string {
+	return createHash('sha256').update(bytes).digest('hex');
+}
+
+export async function findRevision(em: EntityManager, slug: string, number: number) {
+	const set = await findCalibratorSet(em, slug);
+	const revision = await em.findOne(CalibratorRevision, { calibratorSet: set.id, number });
+	if (!revision) throw notFound(`revision ${number} of ${slug}`);
+	return { set, revision };
+}
+
+export function revisionContent(revision: { content: Record<string, unknown> }) {
+	return revision.content as unknown as CalibratorRevisionContent & { digest: string };
+}
+
+/** The stored rows; uploads only ever hold numbers, text and nulls. */
+export function revisionRows(revision: { content: Record<string, unknown> }): CanonicalRow[] {
+	return revisionContent(revision).rows as CanonicalRow[];
+}
+
+export async function listRevisions(em: EntityManager, slug: string) {
+	const set = await findCalibratorSet(em, slug);
+	const revisions = await em.find(
+		CalibratorRevision,
+		{ calibratorSet: set.id },
+		{ orderBy: { number: 'asc' }, exclude: ['content'] }
+	);
+	return { set, revisions };
+}
+
+/** Row-by-row, field-by-field diff of two revisions of a set, keyed by cross_id when present. */
+export async function diffRevisions(em: EntityManager, slug: string, from: number, to: number): Promise<RevisionDiff> {
+	const [a, b] = await Promise.all([findRevision(em, slug, from), findRevision(em, slug, to)]);
+	return diffCalibratorRevisions(revisionRows(a.revision), revisionRows(b.revision));
+}
+
+/** The revision as CSV with canonical column names; formula-like text cells are neutralised. */
+export function revisionCsv(revision: { content: Record<string, unknown> }): string {
+	const content = revisionContent(revision);
+	return calibratorRowsToCsv(content.columns, revisionRows(revision));
+}

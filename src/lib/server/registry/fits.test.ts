@@ -1,0 +1,64 @@
+import { describe, expect, test } from 'vitest';
+import { runsInBackground, specFromRequest } from './fits';
+import { defaultMagnitudeSystem } from './relations';
+import { FitRequestSchema } from './schemas';
+
+const request = (extra: Record<string, unknown> = {}) =>
+	FitRequestSchema.parse({
+		calibrator_set: 'invented-set',
+		revision: 1,
+		band: 'W_VI',
+		population: 'classical_fundamental',
+		anchor: 'host',
+		method: 'ml_scatter',
+		...extra
+	});
+
+describe('fit requests', () => {
+	test('defaults fill every setting the engine needs, in camelCase', () => {
+		expect(specFromRequest(request({ clipping: { sigma: 3, max_iterations: 5 } }))).toEqual({
+			bandId: 'W_VI',
+			population: 'classical_fundamental',
+			anchor: 'host',
+			form: 'period_luminosity',
+			method: 'ml_scatter',
+			pivotLogPeriod: 1,
+			pivotFeh: 0,
+			periodFilter: { logPeriodMin: null, logPeriodMax: null },
+			fundamentalise: false,
+			fixedSlope: null,
+			fixedZeroPoint: null,
+			clipping: { sigma: 3, maxIterations: 5 },
+			extinctionLaw: null,
+			rV: null,
+			parallaxOffset: null,
+			bootstrap: null,
+			weightedCovariance: 'absolute',
+			assumedIntrinsicScatter: null
+		});
+	});
+
+	test.each([
+		[{}, 40, false],
+		[{ bootstrap: { resamples: 199, seed: 1 } }, 40, false],
+		[{ bootstrap: { resamples: 200, seed: 1 } }, 40, true],
+		[{}, 5000, true]
+	])('%j with %i stars runs in the background: %s', (extra, stars, background) => {
+		expect(runsInBackground(request(extra), stars, { bootstrapResamples: 200, stars: 5000 })).toBe(background);
+	});
+
+	test('unknown fields and impossible values are refused', () => {
+		expect(FitRequestSchema.safeParse({ ...request(), sigma: 3 }).success).toBe(false);
+		expect(FitRequestSchema.safeParse({ ...request(), bootstrap: { resamples: 0, seed: 1 } }).success).toBe(false);
+	});
+});
+
+describe('relations', () => {
+	test.each([
+		['V', 'Vega'],
+		['W_VI', 'Vega'],
+		['G', 'Vega']
+	])('band %s defaults to the %s system of its catalogue', (band, system) => {
+		expect(defaultMagnitudeSystem(band)).toBe(system);
+	});
+});
