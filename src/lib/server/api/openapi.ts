@@ -1,6 +1,7 @@
 import { z } from 'zod';
 import { ACCESS_POLICY, type AccessRule } from '../auth/access-policy';
 import { SESSION_COOKIE } from '../auth/lucia';
+import './all-schemas';
 import { apiSchemas, registeredApiSchemas } from './schema-registry';
 
 /**
@@ -17,8 +18,14 @@ export function openApiPath(route: string): string | null {
 	return route.replace(/\[(\w+)\]/g, '{$1}');
 }
 
+/** Request schemas may transform their input (e.g. a JSON query parameter); the document describes what clients send. */
 function componentSchemas(): Record<string, JsonObject> {
-	const { schemas } = z.toJSONSchema(apiSchemas, { target: 'draft-2020-12', uri: SCHEMA_REF }) as {
+	const { schemas } = z.toJSONSchema(apiSchemas, {
+		target: 'draft-2020-12',
+		uri: SCHEMA_REF,
+		io: 'input',
+		unrepresentable: 'any'
+	}) as {
 		schemas: Record<string, JsonObject>;
 	};
 	// Each component is embedded in the document, so the per-schema $schema and $id are dropped.

@@ -1,0 +1,7 @@
+/**
+ * Imports every module that registers API schemas, so the OpenAPI document is complete whichever
+ * routes have been loaded so far.
+ */
+import './account-schemas';
+import './hubble';
+import '../registry/schemas';

@@ -1,0 +1,68 @@
+import { json } from '@sveltejs/kit';
+import { readBodyWithLimit } from '$lib/server/api/request-body';
+import { getConfig } from '$lib/server/config';
+import { UPLOAD_MEDIA_TYPES, uploadRevision } from '$lib/server/registry/calibrator-sets';
+import { RegistryError } from '$lib/server/registry/errors';
+import { actorOf, registryResponse } from '$lib/server/registry/http';
+import { ColumnMappingSchema } from '$lib/server/registry/schemas';
+import { revisionToWire } from '$lib/server/registry/wire';
+import { getObjectStorage } from '$lib/server/storage/app-storage';
+import type { RequestHandler } from './$types';
+
+/**
+ * Uploads a revision as a raw text/csv or text/tab-separated-values body. Query: `mapping` (JSON
+ * column mapping for non-canonical headers), `name` (the file's name), `note`.
+ */
+export const POST: RequestHandler = (event) =>
+	registryResponse(async () => {
+		const mediaType = (event.request.headers.get('content-type') ?? '').split(';')[0].trim().toLowerCase();
+		if (!(UPLOAD_MEDIA_TYPES as readonly string[]).includes(mediaType)) {
+			throw new RegistryError(
+				415,
+				'unsupported-media-type',
+				'Send the table as text/csv or text/tab-separated-values.'
+			);
+		}
+		const mapping = parseMapping(event.url.searchParams.get('mapping'));
+		const config = getConfig();
+		const bytes = await readBodyWithLimit(event.request, config.CANDLEBOOK_MAX_UPLOAD_BYTES);
+		const name =
+			event.url.searchParams.get('name')?.slice(0, 200) || `upload.${mediaType === 'text/csv' ? 'csv' : 'tsv'}`;
+		const revision = await uploadRevision(
+			event.locals.em,
+			getObjectStorage(),
+			actorOf(event.locals),
+			event.params.slug,
+			{ bytes, mediaType, fileName: name, mapping, note: event.url.searchParams.get('note')?.slice(0, 2000) ?? '' },
+			{
+				maxBytes: config.CANDLEBOOK_MAX_UPLOAD_BYTES,
+				maxRows: config.CANDLEBOOK_MAX_UPLOAD_ROWS,
+				maxColumns: 200,
+				maxCellLength: 500
+			}
+		);
+		return json(revisionToWire(event.params.slug, revision), {
+			status: 201,
+			headers: { location: `/api/v1/calibrator-sets/${event.params.slug}/revisions/${revision.number}` }
+		});
+	});
+
+function parseMapping(raw: string | null) {
+	if (!raw) return {};
+	let value: unknown;
+	try {
+		value = JSON.parse(raw);
+	} catch {
+		throw new RegistryError(400, 'bad-mapping', 'The mapping query parameter is not valid JSON.');
+	}
+	const parsed = ColumnMappingSchema.safeParse(value);
+	if (!parsed.success) {
+		throw new RegistryError(
+			422,
+			'bad-mapping',
+			'The mapping does not match its schema.',
+			parsed.error.issues.map((issue) => ({ path: `mapping/${issue.path.join('/')}`, message: issue.message }))
+		);
+	}
+	return parsed.data;
+}
