@@ -110,6 +110,12 @@ const BAD_UPLOADS: { name: string; body: () => Uint8Array; mediaType?: string; s
 		expect: /^line\/2\/parallax_err_mas: "0": must be positive/
 	},
 	{
+		name: 'a non-positive parallax',
+		body: () => encode(`${CANONICAL_HEAD}\nA,classical_fundamental,5,5,0.01,-0.2,0.05\n`),
+		status: 422,
+		expect: /^line\/2\/parallax_mas: "-0.2": must be positive/
+	},
+	{
 		name: 'a duplicate star name',
 		body: () =>
 			encode(
@@ -204,6 +210,16 @@ describe('a good upload', () => {
 		expect(await orm.em.fork().count(AuditEvent, { kind: 'calibrator-revision-uploaded', subject: `${slug}#1` })).toBe(
 			1
 		);
+	});
+
+	test('a negative parallax is kept as measured when the curator asks, for parallax-space fits', async () => {
+		const slug = await newSet();
+		const revision = await upload(slug, encode(`${CANONICAL_HEAD}\nA,classical_fundamental,5,5,0.01,-0.2,0.05\n`), {
+			keepNonPositiveParallax: true
+		});
+		const stored = await orm.em.fork().findOneOrFail(CalibratorRevision, revision.id);
+		const content = stored.content as unknown as CalibratorRevisionContent;
+		expect(content.rows[0].values.parallax_mas).toBe(-0.2);
 	});
 
 	test('TSV with a column mapping and units is converted to canonical fields', async () => {

@@ -22,7 +22,7 @@ const CSV = [
 ].join('\n');
 
 function revision() {
-	const table = parseCalibratorTable(CSV);
+	const table = parseCalibratorTable(CSV, {}, undefined, { keepNonPositiveParallax: true });
 	expect(table.issues).toEqual([]);
 	return parseCalibratorRevisionContent({
 		calibrator_set: 'invented-set',

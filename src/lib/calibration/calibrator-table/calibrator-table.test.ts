@@ -16,7 +16,7 @@ const CANONICAL = [
 
 describe('calibrator table upload', () => {
 	test('canonical columns are read directly, in canonical units, with missing values as null', () => {
-		const table = parseCalibratorTable(CANONICAL);
+		const table = parseCalibratorTable(CANONICAL, {}, undefined, { keepNonPositiveParallax: true });
 		expect(table.issues).toEqual([]);
 		expect(table.columns.map((column) => column.field)).toEqual(CANONICAL.split('\n')[0].split(','));
 		expect(table.rows[0]).toEqual({
@@ -35,8 +35,16 @@ describe('calibrator table upload', () => {
 			}
 		});
 		expect(table.rows[1].values.ebv).toBeNull();
-		// A negative parallax is a measurement, kept for parallax-space fits.
+		// A negative parallax is a measurement, kept (when asked) for parallax-space fits.
 		expect(table.rows[1].values.parallax_mas).toBe(-0.1);
+	});
+
+	test('a zero or negative parallax is refused unless the curator keeps it for a parallax-space fit', () => {
+		const table = parseCalibratorTable(CANONICAL);
+		expect(table.rows).toEqual([]);
+		expect(table.issues).toEqual([
+			{ line: 3, column: 'parallax_mas', value: '-0.10', reason: expect.stringContaining('must be positive') }
+		]);
 	});
 
 	test('TSV is detected, and other headers are mapped with units converted to canonical ones', () => {
@@ -129,16 +137,18 @@ describe('calibrator table export', () => {
 	});
 
 	test('export then re-import gives the same rows; numeric cells are never prefixed', () => {
-		const table = parseCalibratorTable(CANONICAL);
+		const keep = { keepNonPositiveParallax: true };
+		const table = parseCalibratorTable(CANONICAL, {}, undefined, keep);
 		const csv = calibratorRowsToCsv(table.columns, table.rows);
 		expect(csv).toContain(',-0.1,');
-		const again = parseCalibratorTable(csv);
+		const again = parseCalibratorTable(csv, {}, undefined, keep);
 		expect(again.rows).toEqual(table.rows);
 	});
 });
 
 describe('revision diff', () => {
-	const before = parseCalibratorTable(CANONICAL).rows;
+	const keep = { keepNonPositiveParallax: true };
+	const before = parseCalibratorTable(CANONICAL, {}, undefined, keep).rows;
 
 	test('a renamed star matched by cross_id is a rename with its field changes, not a removal and an addition', () => {
 		const after = parseCalibratorTable(

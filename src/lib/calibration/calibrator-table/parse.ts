@@ -22,6 +22,15 @@ export interface TableLimits {
 
 export const DEFAULT_TABLE_LIMITS: TableLimits = { maxRows: 20_000, maxColumns: 200, maxCellLength: 500 };
 
+export interface TableOptions {
+	/**
+	 * A zero or negative parallax cannot be inverted into a distance, so by default it is refused. A
+	 * parallax-space fit uses such parallaxes as measured (dropping them biases the sample), so a curator
+	 * who fits that way may keep them.
+	 */
+	keepNonPositiveParallax?: boolean;
+}
+
 export interface TableIssue {
 	/** 1-based line in the file (the header is line 1); null for problems with the file as a whole. */
 	line: number | null;
@@ -56,7 +65,8 @@ const MAX_REPORTED_ISSUES = 200;
 export function parseCalibratorTable(
 	text: string,
 	mapping: ColumnMapping = {},
-	limits: TableLimits = DEFAULT_TABLE_LIMITS
+	limits: TableLimits = DEFAULT_TABLE_LIMITS,
+	options: TableOptions = {}
 ): ParsedTable {
 	const issues: TableIssue[] = [];
 	const report = (issue: TableIssue) => {
@@ -113,6 +123,18 @@ export function parseCalibratorTable(
 				});
 			} else if (typeof cell === 'object' && cell !== null) {
 				report({ line, column: column.source, value: raw, reason: cell.reason });
+			} else if (
+				column.definition.field === 'parallax_mas' &&
+				typeof cell === 'number' &&
+				cell <= 0 &&
+				!options.keepNonPositiveParallax
+			) {
+				report({
+					line,
+					column: column.source,
+					value: raw,
+					reason: 'must be positive to give a distance; keep zero and negative parallaxes only for parallax-space fits'
+				});
 			} else {
 				values[column.definition.field] = cell;
 			}

@@ -73,6 +73,8 @@ export interface UploadInput {
 	fileName: string;
 	mapping: ColumnMapping;
 	note: string;
+	/** Keep zero and negative parallaxes (for parallax-space fits) instead of refusing them. */
+	keepNonPositiveParallax?: boolean;
 }
 
 export interface UploadLimits extends TableLimits {
@@ -115,7 +117,9 @@ export async function uploadRevision(
 	}
 	const decoded = decodeUtf8(input.bytes);
 	if (!decoded.ok) refuseTable([decoded.issue]);
-	const table = parseCalibratorTable(decoded.text, input.mapping, limits);
+	const table = parseCalibratorTable(decoded.text, input.mapping, limits, {
+		keepNonPositiveParallax: input.keepNonPositiveParallax ?? false
+	});
 	if (table.issues.length > 0) refuseTable(table.issues);
 	const expected = mediaType === 'text/csv' ? ',' : '\t';
 	if (table.delimiter !== expected) {

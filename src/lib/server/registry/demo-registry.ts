@@ -224,7 +224,9 @@ async function seed(
 			mediaType: 'text/csv',
 			fileName,
 			mapping: {},
-			note
+			note,
+			// Parallaxes are kept as measured, as a parallax-space fit wants them.
+			keepNonPositiveParallax: true
 		});
 	await upload(DEMO_MARKER_SET, csvOf(LANTERN_HEADER, lantern), 'lantern-dr1.csv', 'First invented release.');
 	const revised = lantern.map((row) => [...row]);

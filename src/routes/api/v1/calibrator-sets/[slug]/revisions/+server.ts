@@ -11,7 +11,8 @@ import type { RequestHandler } from './$types';
 
 /**
  * Uploads a revision as a raw text/csv or text/tab-separated-values body. Query: `mapping` (JSON
- * column mapping for non-canonical headers), `name` (the file's name), `note`.
+ * column mapping for non-canonical headers), `name` (the file's name), `note`, and
+ * `non_positive_parallax=keep` to keep zero and negative parallaxes for parallax-space fits.
  */
 export const POST: RequestHandler = (event) =>
 	registryResponse(async () => {
@@ -33,7 +34,14 @@ export const POST: RequestHandler = (event) =>
 			getObjectStorage(),
 			actorOf(event.locals),
 			event.params.slug,
-			{ bytes, mediaType, fileName: name, mapping, note: event.url.searchParams.get('note')?.slice(0, 2000) ?? '' },
+			{
+				bytes,
+				mediaType,
+				fileName: name,
+				mapping,
+				note: event.url.searchParams.get('note')?.slice(0, 2000) ?? '',
+				keepNonPositiveParallax: event.url.searchParams.get('non_positive_parallax') === 'keep'
+			},
 			{
 				maxBytes: config.CANDLEBOOK_MAX_UPLOAD_BYTES,
 				maxRows: config.CANDLEBOOK_MAX_UPLOAD_ROWS,
