@@ -275,3 +275,62 @@ test('two revisions diff by cross_id: a renamed star is a rename, not a removal 
 		unchanged_count: 39
 	});
 });
+
+test('a pinned version: same bytes every time, digest recomputes, 304 on its ETag, Content-Digest checks out in Python', async () => {
+	const set = await setWithRevision();
+	const relation = await newRelation();
+	const fit = await call(curatorToken, 'POST', '/api/v1/fits', { calibrator_set: set, revision: 1, ...FIT });
+	const proposed = await call(curatorToken, 'POST', `/api/v1/relations/${relation}/proposals`, {
+		fit: fit.body.id,
+		title: 'Pinned',
+		submit: true
+	});
+	expect(
+		(await call(reviewerTokens[0], 'POST', `/api/v1/proposals/${proposed.body.id}/reviews`, { decision: 'approve' }))
+			.status
+	).toBe(201);
+
+	const first = await fetch(`${origin}/api/v1/relations/${relation}/versions/1`);
+	const second = await fetch(`${origin}/api/v1/pins/${relation}@1`);
+	const [a, b] = [Buffer.from(await first.arrayBuffer()), Buffer.from(await second.arrayBuffer())];
+	expect(first.status).toBe(200);
+	expect(a.equals(b)).toBe(true);
+	const body = JSON.parse(a.toString('utf8')) as RelationVersionContent & { digest: string };
+	// The digest rule: remove `digest`, RFC 8785 canonical JSON of the rest, sha256.
+	expect(verifyDigest(body)).toMatchObject({ ok: true, computed: body.digest });
+	expect(first.headers.get('etag')).toBe(`"${body.digest}"`);
+	expect(first.headers.get('cache-control')).toBe('public, max-age=31536000, immutable');
+
+	const again = await fetch(`${origin}/api/v1/pins/${relation}@1`, {
+		headers: { 'if-none-match': `"${body.digest}"` }
+	});
+	expect(again.status).toBe(304);
+	expect((await again.arrayBuffer()).byteLength).toBe(0);
+
+	// A client outside the project: Python's standard library fetches the pin and checks RFC 9530 Content-Digest.
+	const { spawnSync } = await import('node:child_process');
+	const python = spawnSync(
+		'/usr/bin/python3',
+		[
+			'-c',
+			[
+				'import base64, hashlib, json, sys, urllib.request',
+				'with urllib.request.urlopen(sys.argv[1]) as r:',
+				'    body = r.read(); header = r.headers["Content-Digest"]',
+				'expected = "sha-256=:" + base64.b64encode(hashlib.sha256(body).digest()).decode() + ":"',
+				'print(json.dumps({"ok": header == expected, "ref": json.loads(body)["ref"]}))'
+			].join('\n'),
+			`${origin}/api/v1/pins/${relation}@1`
+		],
+		{ encoding: 'utf8' }
+	);
+	expect(python.stderr).toBe('');
+	expect(JSON.parse(python.stdout)).toEqual({ ok: true, ref: `${relation}@1` });
+
+	expect((await fetch(`${origin}/api/v1/pins/${relation}@2`)).status).toBe(404);
+	expect((await fetch(`${origin}/api/v1/pins/not-a-ref`)).status).toBe(404);
+	const bands = await (await fetch(`${origin}/api/v1/bands`)).json();
+	expect(bands.items.map((band: { id: string }) => band.id)).toEqual(
+		expect.arrayContaining(['V', 'Ks', 'W_VI', 'W_G', 'IRAC36'])
+	);
+});

@@ -129,6 +129,21 @@ export const ACCESS_POLICY: readonly AccessRule[] = [
 		tokenScope: 'any',
 		summary: 'H0 from a distance and a velocity or line'
 	},
+	{ route: '/api/v1/bands', method: 'GET', audience: anyone, tokenScope: 'any', summary: 'the band catalogue' },
+	{
+		route: '/api/v1/relations/[slug]/versions/[n]',
+		method: 'GET',
+		audience: anyone,
+		tokenScope: 'any',
+		summary: 'one frozen version'
+	},
+	{
+		route: '/api/v1/pins/[ref]',
+		method: 'GET',
+		audience: anyone,
+		tokenScope: 'any',
+		summary: 'one frozen version by slug@version'
+	},
 	{
 		route: '/api/v1/groups/[slug]/members',
 		method: 'GET',

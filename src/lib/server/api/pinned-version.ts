@@ -1,0 +1,48 @@
+import { canonicalJson } from '$lib/calibration';
+import { contentDigest } from '$lib/publishing/content-digest';
+import type { Actor } from '../registry/actor';
+import { findVersion, isEmbargoed } from '../registry/versions';
+import type { EntityManager } from '@mikro-orm/postgresql';
+
+/**
+ * One frozen version as pipelines pin it: exactly its frozen content plus `digest`, as RFC 8785
+ * canonical JSON so the bytes never change. ETag is the digest; public, unembargoed versions are
+ * cacheable for a year by anyone; what depends on the viewer is private and varies on credentials.
+ */
+export function readerOf(locals: App.Locals): Actor | null {
+	const user = locals.user;
+	if (!user) return null;
+	// A token sees private and embargoed content only with the read:private scope.
+	if (locals.apiToken && !locals.apiToken.scopes.includes('read:private')) return null;
+	return { id: user.id, displayName: user.displayName, roles: user.roles };
+}
+
+export async function pinnedVersionResponse(
+	em: EntityManager,
+	reader: Actor | null,
+	slug: string,
+	number: number,
+	ifNoneMatch: string | null
+): Promise<Response> {
+	const { relation, version, lifecycle } = await findVersion(em, reader, slug, number);
+	const body = new TextEncoder().encode(canonicalJson(version.content));
+	const etag = `"${version.digest}"`;
+	const isPublic = relation.visibility === 'public' && !isEmbargoed(lifecycle);
+	const headers: Record<string, string> = {
+		'content-type': 'application/json',
+		etag,
+		'content-digest': contentDigest(body),
+		...(isPublic
+			? { 'cache-control': 'public, max-age=31536000, immutable', 'access-control-allow-origin': '*' }
+			: { 'cache-control': 'private, no-cache', vary: 'Authorization, Cookie' })
+	};
+	const tags = (ifNoneMatch ?? '').split(',').map((tag) => tag.trim().replace(/^W\//, ''));
+	if (tags.includes(etag) || tags.includes('*')) return new Response(null, { status: 304, headers });
+	return new Response(body, { status: 200, headers });
+}
+
+/** `slug@n` → its parts, or null. */
+export function parseRef(ref: string): { slug: string; number: number } | null {
+	const match = /^([a-z0-9]+(?:-[a-z0-9]+)*)@([1-9]\d{0,8})$/.exec(ref);
+	return match ? { slug: match[1], number: Number(match[2]) } : null;
+}
