@@ -7,8 +7,12 @@ import type { CanonicalRow, MappedColumn } from './parse';
  */
 const FORMULA_START = /^[=+\-@\t\r]/;
 
+export function looksLikeFormula(cell: string): boolean {
+	return FORMULA_START.test(cell);
+}
+
 export function neutraliseFormula(cell: string): string {
-	return FORMULA_START.test(cell) ? `'${cell}` : cell;
+	return looksLikeFormula(cell) ? `'${cell}` : cell;
 }
 
 /** Writes canonical rows as CSV with canonical column names, in the revision's column order. */

@@ -9,14 +9,6 @@ import type { EntityManager } from '@mikro-orm/postgresql';
  * canonical JSON so the bytes never change. ETag is the digest; public, unembargoed versions are
  * cacheable for a year by anyone; what depends on the viewer is private and varies on credentials.
  */
-export function readerOf(locals: App.Locals): Actor | null {
-	const user = locals.user;
-	if (!user) return null;
-	// A token sees private and embargoed content only with the read:private scope.
-	if (locals.apiToken && !locals.apiToken.scopes.includes('read:private')) return null;
-	return { id: user.id, displayName: user.displayName, roles: user.roles };
-}
-
 export async function pinnedVersionResponse(
 	em: EntityManager,
 	reader: Actor | null,

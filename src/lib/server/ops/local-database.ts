@@ -69,9 +69,12 @@ export async function openLocalDatabase(): Promise<RunningDatabase> {
 		superuserPassword: randomSecret(),
 		port: null
 	};
-	const port = await freePort(
-		requestedPort() ?? (state.port ? await freePort(state.port).catch(() => undefined) : undefined)
-	);
+	const requested = requestedPort();
+	// The port asked for, else the last one if it is still free, else any free one.
+	const port =
+		requested !== undefined
+			? await freePort(requested)
+			: await freePort(state.port ?? undefined).catch(() => freePort());
 	const cluster = new PostgresCluster({
 		dataDir: join(stateDir, 'postgres', 'data'),
 		runDir: join(stateDir, 'postgres', 'run'),

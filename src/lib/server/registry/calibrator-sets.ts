@@ -1,4 +1,3 @@
-import { createHash } from 'node:crypto';
 import type { EntityManager } from '@mikro-orm/postgresql';
 import { LockMode } from '@mikro-orm/core';
 import {
@@ -19,7 +18,7 @@ import {
 import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { CalibratorSet } from '../entities/calibrator-set.entity';
 import { Group } from '../entities/index';
-import type { ObjectStorage } from '../storage/object-storage';
+import { contentAddress, type ObjectStorage } from '../storage/object-storage';
 import { belongsTo, type Actor } from './actor';
 import { auditRegistry } from './audit';
 import { conflict, forbidden, invalid, notFound, RegistryError } from './errors';
@@ -136,8 +135,8 @@ export async function uploadRevision(
 	const formulas = formulaCellIssues(table.columns, table.rows);
 	if (formulas.length > 0) refuseTable(formulas);
 
-	const sourceSha = sha256Hex(input.bytes);
-	const sourceKey = `${SOURCE_PREFIX}/sha256/${sourceSha}`;
+	const address = contentAddress(SOURCE_PREFIX, input.bytes);
+	const { key: sourceKey, sha256: sourceSha } = address;
 	const existedBefore = await storage.exists(sourceKey);
 	let stored = false;
 	try {
@@ -172,7 +171,7 @@ export async function uploadRevision(
 				rows: table.rows.length
 			});
 			// Last step before commit: a failed put rolls the row back.
-			await storage.putContentAddressed(SOURCE_PREFIX, input.bytes, mediaType);
+			await storage.putAt(address, input.bytes, mediaType);
 			stored = true;
 			return revision;
 		});
@@ -209,10 +208,6 @@ function sealContent(
 		}
 		throw error;
 	}
-}
-
-function sha256Hex(bytes: Uint8Array): string {
-	return createHash('sha256').update(bytes).digest('hex');
 }
 
 export async function findRevision(em: EntityManager, slug: string, number: number) {

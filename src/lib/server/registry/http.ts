@@ -8,11 +8,26 @@ import { RegistryError } from './errors';
 
 /** Glue between the registry services and SvelteKit's API routes. */
 
+const toActor = (user: NonNullable<App.Locals['user']>): Actor => ({
+	id: user.id,
+	displayName: user.displayName,
+	roles: user.roles
+});
+
 /** The caller as an Actor; the access policy has already refused anonymous callers on these routes. */
 export function actorOf(locals: App.Locals): Actor {
-	const user = locals.user;
-	if (!user) throw new RegistryError(403, 'forbidden', 'Sign in, or send a valid API token.');
-	return { id: user.id, displayName: user.displayName, roles: user.roles };
+	if (!locals.user) throw new RegistryError(403, 'forbidden', 'Sign in, or send a valid API token.');
+	return toActor(locals.user);
+}
+
+/**
+ * The caller as a reader of possibly private content, or null for the public view. A token sees
+ * private and embargoed content only with the read:private scope.
+ */
+export function readerOf(locals: App.Locals): Actor | null {
+	if (!locals.user) return null;
+	if (locals.apiToken && !locals.apiToken.scopes.includes('read:private')) return null;
+	return toActor(locals.user);
 }
 
 /** Runs a route body, answering a RegistryError as problem+json with its code (and any upload issues). */

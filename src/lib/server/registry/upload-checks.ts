@@ -1,4 +1,4 @@
-import type { CanonicalRow, MappedColumn, TableIssue } from '../../calibration/index';
+import { looksLikeFormula, type CanonicalRow, type MappedColumn, type TableIssue } from '../../calibration/index';
 
 /**
  * Checks an upload must pass before the table parser sees it, and one it must pass after: the bytes
@@ -51,9 +51,6 @@ function firstInvalidUtf8(bytes: Uint8Array): number {
 	return bytes.length;
 }
 
-/** A text cell a spreadsheet would evaluate (OWASP "CSV injection"): = + - @ or a tab/CR first. */
-const FORMULA_START = /^[=+\-@\t\r]/;
-
 /**
  * Text cells that look like spreadsheet formulas, refused at upload (export neutralises them too).
  * Lines count the header as line 1 and one line per record, as the table parser reports them.
@@ -63,7 +60,7 @@ export function formulaCellIssues(columns: readonly MappedColumn[], rows: readon
 	rows.forEach((row, index) => {
 		for (const column of columns) {
 			const value = row.values[column.field];
-			if (typeof value !== 'string' || !FORMULA_START.test(value)) continue;
+			if (typeof value !== 'string' || !looksLikeFormula(value)) continue;
 			issues.push({
 				line: index + 2,
 				column: column.source_column,

@@ -31,6 +31,12 @@ export interface StoredObject {
 	size: number;
 }
 
+/** Where bytes live in the store: `<prefix>/sha256/<hex of their SHA-256>`. */
+export function contentAddress(prefix: string, body: Uint8Array): StoredObject {
+	const sha256 = createHash('sha256').update(body).digest('hex');
+	return { key: `${prefix}/sha256/${sha256}`, sha256, size: body.byteLength };
+}
+
 export class ObjectStorage {
 	private readonly client: S3Client;
 	readonly bucket: string;
@@ -56,20 +62,23 @@ export class ObjectStorage {
 
 	/** Stores bytes under `<prefix>/sha256/<hex>`; storing the same bytes again is a no-op. */
 	async putContentAddressed(prefix: string, body: Uint8Array, contentType: string): Promise<StoredObject> {
-		const sha256 = createHash('sha256').update(body).digest('hex');
-		const key = `${prefix}/sha256/${sha256}`;
-		if (!(await this.exists(key))) {
+		return this.putAt(contentAddress(prefix, body), body, contentType);
+	}
+
+	/** Stores bytes at an address made by `contentAddress` (for callers that need the key first). */
+	async putAt(address: StoredObject, body: Uint8Array, contentType: string): Promise<StoredObject> {
+		if (!(await this.exists(address.key))) {
 			await this.client.send(
 				new PutObjectCommand({
 					Bucket: this.bucket,
-					Key: key,
+					Key: address.key,
 					Body: body,
 					ContentType: contentType,
-					Metadata: { sha256 }
+					Metadata: { sha256: address.sha256 }
 				})
 			);
 		}
-		return { key, sha256, size: body.byteLength };
+		return address;
 	}
 
 	async get(key: string): Promise<Uint8Array> {

@@ -1,6 +1,6 @@
-import { pinnedVersionResponse, parseRef, readerOf } from '$lib/server/api/pinned-version';
+import { pinnedVersionResponse, parseRef } from '$lib/server/api/pinned-version';
 import { problem } from '$lib/server/api/problem';
-import { registryResponse } from '$lib/server/registry/http';
+import { readerOf, registryResponse } from '$lib/server/registry/http';
 import type { RequestHandler } from './$types';
 
 /** `GET /api/v1/pins/{slug}@{n}`: the same bytes as the version's own URL. */

@@ -1,5 +1,5 @@
-import { pinnedVersionResponse, readerOf } from '$lib/server/api/pinned-version';
-import { registryResponse, versionParam } from '$lib/server/registry/http';
+import { pinnedVersionResponse } from '$lib/server/api/pinned-version';
+import { readerOf, registryResponse, versionParam } from '$lib/server/registry/http';
 import type { RequestHandler } from './$types';
 
 /** One frozen version: its frozen content plus digest, byte-identical on every fetch. */
