@@ -5,3 +5,6 @@
 import './account-schemas';
 import './hubble';
 import '../registry/schemas';
+import './read-schemas';
+import './export-schemas';
+import './light-curve-schemas';

@@ -61,16 +61,25 @@ const run = (command: string, args: string[], extraEnv: NodeJS.ProcessEnv = {}) 
 		child.on('exit', (code) => resolve(code ?? 1));
 	});
 
-const vitestStatus = await run(bin('vitest'), ['run', ...process.argv.slice(2)]);
+// For a quick loop while working on one part: CANDLEBOOK_TEST_ONLY=vitest|browser runs one runner, and
+// CANDLEBOOK_BROWSER_TESTS names browser test files (space-separated). Unset, both run in full.
+const only = process.env.CANDLEBOOK_TEST_ONLY;
+const browserFiles = (process.env.CANDLEBOOK_BROWSER_TESTS ?? '').split(' ').filter(Boolean);
+const vitestStatus = only === 'browser' ? 0 : await run(bin('vitest'), ['run', ...process.argv.slice(2)]);
 
-let browserStatus = 1;
+let browserStatus = only === 'vitest' ? 0 : 1;
 try {
-	buildApp();
-	browserStatus = await run(bin('playwright'), ['test', '--config', 'tests/browser/playwright.config.ts'], {
-		CANDLEBOOK_TEST_PORT: String(await freePort()),
-		SMTP_URL: mail.url,
-		CANDLEBOOK_MAIL_CAPTURE_DIR: mailDir
-	});
+	if (only !== 'vitest') buildApp();
+	if (only !== 'vitest')
+		browserStatus = await run(
+			bin('playwright'),
+			['test', '--config', 'tests/browser/playwright.config.ts', ...browserFiles],
+			{
+				CANDLEBOOK_TEST_PORT: String(await freePort()),
+				SMTP_URL: mail.url,
+				CANDLEBOOK_MAIL_CAPTURE_DIR: mailDir
+			}
+		);
 } catch (error) {
 	console.error(`[candlebook] browser tests could not run: ${(error as Error).message}`);
 }
@@ -83,9 +92,8 @@ function readSummary(runner: string): RunnerSummary | null {
 	}
 }
 
-const summaries = ['vitest', 'playwright'].map(
-	(runner) => readSummary(runner) ?? { runner, passed: 0, failed: 1, skipped: 0 }
-);
+const runners = only === 'vitest' ? ['vitest'] : only === 'browser' ? ['playwright'] : ['vitest', 'playwright'];
+const summaries = runners.map((runner) => readSummary(runner) ?? { runner, passed: 0, failed: 1, skipped: 0 });
 const ranNothing = summaries.some((summary) => summary.passed + summary.failed === 0);
 const failed = vitestStatus !== 0 || browserStatus !== 0 || ranNothing;
 
