@@ -20,6 +20,7 @@ export function calibratorSetToWire(set: CalibratorSetEntity) {
 		title: set.title,
 		description: set.description,
 		group: set.group.slug ?? null,
+		visibility: set.visibility,
 		licence: set.licence,
 		citations: [...set.citations],
 		created_at: iso(set.createdAt)
