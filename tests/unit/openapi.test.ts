@@ -2,6 +2,7 @@ import { Validator } from '@seriousme/openapi-schema-validator';
 import { describe, expect, test } from 'vitest';
 import '../../src/lib/server/api/account-schemas';
 import { buildOpenApiDocument, openApiPath } from '../../src/lib/server/api/openapi';
+import { describeOperation, operationDocs } from '../../src/lib/server/api/schema-registry';
 import { ACCESS_POLICY } from '../../src/lib/server/auth/access-policy';
 
 describe('the generated OpenAPI document', () => {
@@ -35,5 +36,29 @@ describe('the generated OpenAPI document', () => {
 			type: 'object',
 			required: expect.arrayContaining(['type', 'title', 'status'])
 		});
+	});
+});
+
+describe('operations described beyond their schemas', () => {
+	test('query parameters, extra statuses and media types appear in the operation', () => {
+		describeOperation('GET /api/v1/bands', {
+			description: 'Every band Candlebook knows.',
+			parameters: [{ name: 'system', in: 'query', description: 'photometric system' }],
+			responses: { '304': { description: 'Not modified', mediaTypes: [] }, '200': { mediaTypes: ['text/csv'] } }
+		});
+		const operation = (buildOpenApiDocument('http://127.0.0.1:3000').paths as Record<string, Record<string, any>>)[
+			'/api/v1/bands'
+		].get;
+		operationDocs.delete('GET /api/v1/bands');
+		expect(operation.description).toBe('Every band Candlebook knows.');
+		expect(operation.parameters).toContainEqual({
+			name: 'system',
+			in: 'query',
+			required: false,
+			description: 'photometric system',
+			schema: { type: 'string' }
+		});
+		expect(operation.responses['304']).toEqual({ description: 'Not modified' });
+		expect(Object.keys(operation.responses['200'].content)).toEqual(['text/csv']);
 	});
 });

@@ -2,7 +2,7 @@ import { z } from 'zod';
 import { ACCESS_POLICY, type AccessRule } from '../auth/access-policy';
 import { SESSION_COOKIE } from '../auth/lucia';
 import './all-schemas';
-import { apiSchemas, registeredApiSchemas } from './schema-registry';
+import { apiSchemas, operationDocs, registeredApiSchemas, type OperationResponse } from './schema-registry';
 
 /**
  * The OpenAPI 3.1 document, generated: paths from the access-policy table (every API route is there),
@@ -41,20 +41,41 @@ function schemaFor(operation: string, role: 'requestFor' | 'responseFor'): strin
 	return registeredApiSchemas.find((meta) => meta[role]?.includes(operation))?.id ?? null;
 }
 
+function documentedResponse(status: string, response: OperationResponse): JsonObject {
+	const mediaTypes = response.mediaTypes ?? ['application/json'];
+	const schema = response.schema ? { $ref: SCHEMA_REF(response.schema) } : {};
+	return {
+		description: response.description ?? (status.startsWith('2') ? 'Success' : `HTTP ${status}`),
+		...(mediaTypes.length ? { content: Object.fromEntries(mediaTypes.map((type) => [type, { schema }])) } : {})
+	};
+}
+
 function operationFor(rule: AccessRule, path: string): JsonObject {
 	const key = `${rule.method} ${path}`;
 	const request = schemaFor(key, 'requestFor');
 	const response = schemaFor(key, 'responseFor');
-	const parameters = [...path.matchAll(/\{(\w+)\}/g)].map(([, name]) => ({
-		name,
-		in: 'path',
-		required: true,
-		schema: { type: 'string' }
-	}));
+	const doc = operationDocs.get(key);
+	const parameters = [
+		...[...path.matchAll(/\{(\w+)\}/g)].map(([, name]) => ({
+			name,
+			in: 'path',
+			required: true,
+			schema: { type: 'string' }
+		})),
+		...(doc?.parameters ?? []).map((parameter) => ({
+			required: false,
+			...parameter,
+			schema: parameter.schema ?? { type: 'string' }
+		}))
+	];
+	const extraResponses = Object.fromEntries(
+		Object.entries(doc?.responses ?? {}).map(([status, entry]) => [status, documentedResponse(status, entry)])
+	);
 	const problem = { content: { 'application/problem+json': { schema: { $ref: SCHEMA_REF('Problem') } } } };
 	const security = rule.audience.kind === 'anyone' ? [{}, { bearer: [] }] : [{ bearer: [] }, { session: [] }];
 	return {
 		summary: rule.summary,
+		...(doc?.description ? { description: doc.description } : {}),
 		operationId: `${rule.method.toLowerCase()}${path.replace(/[^A-Za-z0-9]+(\w)?/g, (_, c: string | undefined) => (c ? c.toUpperCase() : ''))}`,
 		...(parameters.length ? { parameters } : {}),
 		...(request
@@ -67,7 +88,8 @@ function operationFor(rule: AccessRule, path: string): JsonObject {
 			},
 			...(rule.audience.kind === 'anyone' ? {} : { '401': { description: 'No or bad credentials', ...problem } }),
 			'403': { description: 'Credentials lack the right', ...problem },
-			default: { description: 'An error (RFC 9457 problem details)', ...problem }
+			default: { description: 'An error (RFC 9457 problem details)', ...problem },
+			...extraResponses
 		},
 		security,
 		...(rule.tokenScope && rule.tokenScope !== 'any' ? { 'x-token-scope': rule.tokenScope } : {})
