@@ -27,7 +27,7 @@ export function calibratorSetToWire(set: CalibratorSetEntity) {
 	};
 }
 
-export function revisionToWire(slug: string, revision: CalibratorRevisionEntity) {
+export function revisionToWire(slug: string, revision: Omit<CalibratorRevisionEntity, 'content'>) {
 	return {
 		calibrator_set: slug,
 		revision: revision.number,
