@@ -2,7 +2,7 @@
 import { z } from 'zod';
 import { RELATION_VISIBILITIES } from '../entities/relation.entity';
 import { RegistryError } from '../registry/errors';
-import { registerApiSchema } from './schema-registry';
+import { describeOperation, registerApiSchema } from './schema-registry';
 
 export const CALIBRATOR_SETS_OPERATION = 'GET /api/v1/calibrator-sets';
 export const CALIBRATOR_SET_OPERATION = 'GET /api/v1/calibrator-sets/{slug}';
@@ -129,3 +129,73 @@ export const CalibratorRevisionExportSchema = registerApiSchema(
 		responseFor: [REVISION_OPERATION]
 	}
 );
+
+const notFound = {
+	description: 'No such set or revision, or a private set the caller may not see',
+	mediaTypes: ['application/problem+json'],
+	schema: 'Problem'
+};
+const badQuery = {
+	description: 'A query parameter is malformed',
+	mediaTypes: ['application/problem+json'],
+	schema: 'Problem'
+};
+
+describeOperation(CALIBRATOR_SETS_OPERATION, {
+	description:
+		"Public sets for everyone; a group's private sets also for its members and admins (tokens need read:private).",
+	parameters: [
+		{
+			name: 'q',
+			in: 'query',
+			description: 'Text to find in the slug, title or description',
+			schema: { type: 'string', maxLength: 200 }
+		},
+		{ name: 'cursor', in: 'query', description: 'next_cursor of the previous page', schema: { type: 'string' } },
+		{
+			name: 'limit',
+			in: 'query',
+			description: 'Sets per page',
+			schema: { type: 'integer', minimum: 1, maximum: 200, default: 50 }
+		}
+	],
+	responses: { '400': badQuery }
+});
+
+describeOperation(CALIBRATOR_SET_OPERATION, { responses: { '404': notFound } });
+
+describeOperation(REVISION_OPERATION, {
+	description:
+		'The same bytes on every fetch. ETag is the SHA-256 of the body; Content-Digest (RFC 9530); public sets are cacheable for a year (immutable). Every format names the revision digest (header Candlebook-Revision-Digest, VOTable INFO "digest", JSON "digest"), the licence (Link rel="license", VOTable INFO, JSON) and the citations (VOTable INFO, JSON; Link rel="describedby" points CSV readers to them).',
+	parameters: [
+		{
+			name: 'format',
+			in: 'query',
+			description: 'Overrides Accept',
+			schema: { type: 'string', enum: ['json', 'csv', 'votable'] }
+		},
+		{
+			name: 'Accept',
+			in: 'header',
+			description: 'application/json, text/csv or application/x-votable+xml',
+			schema: { type: 'string' }
+		},
+		{ name: 'If-None-Match', in: 'header', description: 'An ETag from an earlier fetch', schema: { type: 'string' } }
+	],
+	responses: {
+		'200': {
+			description: 'The revision: JSON (schema below), CSV with a header line, or IVOA VOTable 1.4',
+			schema: 'CalibratorRevisionExport',
+			mediaTypes: ['application/json', 'text/csv', 'application/x-votable+xml']
+		},
+		'304': { description: 'Not modified (If-None-Match matched the ETag)', mediaTypes: [] },
+		'400': badQuery,
+		'404': notFound
+	}
+});
+
+describeOperation(ARCHIVE_OPERATION, {
+	description:
+		'A zip of every public, unembargoed frozen relation version (the exact pinned bytes) and every revision of every public calibrator set (JSON, CSV, VOTable), with manifest.json (path, kind, ref, SHA-256 of each file) and README.txt (how to verify). Streamed.',
+	responses: { '200': { description: 'The archive', mediaTypes: ['application/zip'] } }
+});
