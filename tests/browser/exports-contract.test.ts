@@ -356,7 +356,9 @@ test('astropy reads the VOTable and the CSV over HTTP with exactly the JSON expo
 				['csv', read.csv.rows[i][j]]
 			] as const) {
 				const label = `${format} ${row.star}.${field}`;
-				if (expected === null) expect(actual, label).toBeNull();
+				// An empty char cell is how VOTable writes a null string; astropy hands it back as ''.
+				if (expected === null && !numeric && format === 'votable') expect(actual, label).toBe('');
+				else if (expected === null) expect(actual, label).toBeNull();
 				// astropy's CSV reader types a column of digits (cross_id) as integers; compare the text.
 				else if (!numeric) expect(String(actual), label).toBe(String(expected));
 				else {
@@ -409,10 +411,9 @@ test('Python’s standard library checks a pin’s Content-Digest and recomputes
 	expect(check.numbers).toBeGreaterThan(10);
 	// json.dumps alone reproduces RFC 8785 exactly when no number is written differently.
 	expect(check.json_dumps_equal).toBe(check.numbers_unlike_json_dumps === 0);
-	test.info().annotations.push({
-		type: 'numbers',
-		description: `${check.numbers_unlike_json_dumps} of ${check.numbers} numbers in ${check.ref} differ between json.dumps and RFC 8785`
-	});
+	const measured = `${check.numbers_unlike_json_dumps} of ${check.numbers} numbers in ${check.ref} are written differently by json.dumps and RFC 8785`;
+	test.info().annotations.push({ type: 'numbers', description: measured });
+	console.log(measured);
 });
 
 test('the archive holds every public frozen version and revision with verifiable digests, and nothing private', async ({

@@ -19,7 +19,7 @@ from astropy.table import Table
 
 def fetch(url):
     with urllib.request.urlopen(url) as response:
-        return response.read(), dict(response.headers)
+        return response.read(), response.headers
 
 
 def plain(value):
