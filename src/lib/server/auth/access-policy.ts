@@ -3,6 +3,7 @@ import type { AccessRule } from './access-rule';
 import { ACCOUNT_PAGE_RULES } from './access-rules/account-pages';
 import { REGISTRY_API_RULES } from './access-rules/registry-api';
 import { READ_API_RULES } from './access-rules/read-api';
+import { EXPORT_API_RULES } from './access-rules/export-api';
 import { LIGHT_CURVE_API_RULES } from './access-rules/light-curves-api';
 import { CATALOGUE_PAGE_RULES } from './access-rules/catalogue-pages';
 import { CALIBRATOR_PAGE_RULES } from './access-rules/calibrator-pages';
@@ -21,6 +22,7 @@ export const ACCESS_POLICY: readonly AccessRule[] = [
 	...ACCOUNT_PAGE_RULES,
 	...REGISTRY_API_RULES,
 	...READ_API_RULES,
+	...EXPORT_API_RULES,
 	...LIGHT_CURVE_API_RULES,
 	...CATALOGUE_PAGE_RULES,
 	...CALIBRATOR_PAGE_RULES,

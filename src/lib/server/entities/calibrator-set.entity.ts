@@ -1,5 +1,6 @@
 import { defineEntity, type InferEntity } from '@mikro-orm/core';
 import { Group } from './group.entity';
+import { RELATION_VISIBILITIES } from './relation.entity';
 import { User } from './user.entity';
 
 /** A named collection of calibrator stars, owned by a group; its revisions are immutable snapshots. */
@@ -15,6 +16,8 @@ export const CalibratorSet = defineEntity({
 		title: p.string().length(200),
 		description: p.text().default(''),
 		group: p.manyToOne(Group).deleteRule('restrict').index(),
+		/** `group`: only members of the owning group (and admins) see the set and its revisions. */
+		visibility: p.enum([...RELATION_VISIBILITIES]).default('public'),
 		/** SPDX licence id of the data, e.g. CC-BY-4.0. */
 		licence: p.string().length(64),
 		/** Citations users of the data must give, as plain text. */

@@ -18,6 +18,7 @@ import {
 import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { CalibratorSet } from '../entities/calibrator-set.entity';
 import { Group } from '../entities/index';
+import type { RelationVisibility } from '../entities/relation.entity';
 import { contentAddress, type ObjectStorage } from '../storage/object-storage';
 import { belongsTo, type Actor } from './actor';
 import { auditRegistry } from './audit';
@@ -35,6 +36,7 @@ export interface CreateCalibratorSetInput {
 	group: string;
 	licence: string;
 	citations: string[];
+	visibility?: RelationVisibility;
 }
 
 export async function createCalibratorSet(em: EntityManager, actor: Actor, input: CreateCalibratorSetInput) {
@@ -52,10 +54,15 @@ export async function createCalibratorSet(em: EntityManager, actor: Actor, input
 			group,
 			licence: input.licence,
 			citations: input.citations,
+			visibility: input.visibility ?? 'public',
 			createdBy: actor.id
 		});
 		await tx.flush();
-		await auditRegistry(tx, 'calibrator-set-created', actor, set.slug, { group: group.slug, licence: set.licence });
+		await auditRegistry(tx, 'calibrator-set-created', actor, set.slug, {
+			group: group.slug,
+			licence: set.licence,
+			visibility: set.visibility
+		});
 		return set;
 	});
 }

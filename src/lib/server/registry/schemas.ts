@@ -27,7 +27,8 @@ export const CreateCalibratorSetSchema = registerApiSchema(
 		description: z.string().max(20_000).default(''),
 		group: slug,
 		licence: spdx,
-		citations: z.array(z.string().trim().min(1).max(2000)).max(50).default([])
+		citations: z.array(z.string().trim().min(1).max(2000)).max(50).default([]),
+		visibility: z.enum(RELATION_VISIBILITIES).default('public')
 	}),
 	{ id: 'CreateCalibratorSet', description: 'A new calibrator set owned by a group.' }
 );

@@ -20,13 +20,14 @@ export function calibratorSetToWire(set: CalibratorSetEntity) {
 		title: set.title,
 		description: set.description,
 		group: set.group.slug ?? null,
+		visibility: set.visibility,
 		licence: set.licence,
 		citations: [...set.citations],
 		created_at: iso(set.createdAt)
 	};
 }
 
-export function revisionToWire(slug: string, revision: CalibratorRevisionEntity) {
+export function revisionToWire(slug: string, revision: Omit<CalibratorRevisionEntity, 'content'>) {
 	return {
 		calibrator_set: slug,
 		revision: revision.number,
