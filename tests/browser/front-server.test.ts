@@ -154,7 +154,8 @@ test('embargoed and group-only versions seen with a cookie or a token are never 
 });
 
 test('public API reads allow any origin without credentials, with a preflight that admits Authorization', async () => {
-	for (const headers of [{}, { cookie: memberCookie }, { authorization: `Bearer ${memberToken}` }]) {
+	const callers: Record<string, string>[] = [{}, { cookie: memberCookie }, { authorization: `Bearer ${memberToken}` }];
+	for (const headers of callers) {
 		const { response } = await get(`${origin}/api/v1/pins/${publicSlug}@1`, headers);
 		expect(response.headers.get('access-control-allow-origin')).toBe('*');
 		expect(response.headers.get('access-control-allow-credentials')).toBeNull();
