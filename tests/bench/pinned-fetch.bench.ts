@@ -13,7 +13,7 @@
  */
 import { spawn, type ChildProcess } from 'node:child_process';
 import { mkdtempSync, rmSync, writeFileSync } from 'node:fs';
-import { tmpdir } from 'node:os';
+import { availableParallelism, loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
 import autocannon from 'autocannon';
@@ -175,7 +175,7 @@ export async function runPinnedFetchBenchmarks(): Promise<{ rows: PinnedFetchRow
 
 export function printPinnedFetchBenchmarks(result: { rows: PinnedFetchRow[]; bytes: number }): void {
 	console.log(
-		`Candlebook pinned-version fetch — ${result.bytes} B JSON, autocannon ${CONNECTIONS} connections × ${SECONDS} s, node ${process.version}`
+		`Candlebook pinned-version fetch — ${result.bytes} B JSON, autocannon ${CONNECTIONS} connections × ${SECONDS} s, node ${process.version}, load average ${loadavg()[0].toFixed(1)} on ${availableParallelism()} cores (other work on the machine lowers every row alike)`
 	);
 	console.table(result.rows.map(({ met: _met, ...row }) => row));
 }
