@@ -9,6 +9,7 @@ import { Group, Relation, RelationVersion, VersionLifecycle } from '../../src/li
 import { freePort } from '../../src/lib/server/ops/postgres-cluster';
 import { PROJECT_ROOT } from '../../src/lib/server/ops/project-paths';
 import { createBearerToken, createPerson, createSessionCookie, openOrm, uniqueSlug } from './support/accounts';
+import { expectMatchesOpenApi } from './support/openapi-contract';
 
 /**
  * The front server (src/lib/server/ops/serve.ts) as deployed: the shared test server for caching and
@@ -262,7 +263,9 @@ test.describe('a second front server with a low limit and a read replica', () =>
 		await exited;
 	});
 
-	test('the fourth anonymous call in the window is refused with 429 problem+json and Retry-After', async () => {
+	test('the fourth anonymous call in the window is refused with 429 problem+json and Retry-After', async ({
+		request
+	}) => {
 		const path = `/api/v1/pins/${publicSlug}@1`;
 		const statuses = [];
 		for (let i = 0; i < 3; i++) {
@@ -285,6 +288,10 @@ test.describe('a second front server with a low limit and a read replica', () =>
 			title: 'Too many requests',
 			status: 429
 		});
+		// The refusal is the problem+json the OpenAPI document promises for errors of this operation.
+		const again = await request.get(base + path);
+		expect(again.status()).toBe(429);
+		await expectMatchesOpenApi(request, again, 'GET /api/v1/pins/{ref}');
 		// Pages are not counted; a token holder is never limited.
 		expect((await fetch(`${base}/healthz`)).status).toBe(200);
 		for (let i = 0; i < 3; i++) {
