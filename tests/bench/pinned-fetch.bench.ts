@@ -32,6 +32,7 @@ export interface PinnedFetchRow {
 	'p50 ms': string;
 	'p99 ms': string;
 	'vs baseline': string;
+	'timed out': number;
 	target: string;
 	met: boolean | null;
 }
@@ -89,9 +90,14 @@ createServer((req, res) => {
 async function load(url: string, headers: Record<string, string> = {}) {
 	await autocannon({ url, connections: CONNECTIONS, duration: 2, headers });
 	const result = await autocannon({ url, connections: CONNECTIONS, duration: SECONDS, headers });
-	if (result.non2xx > 0 || result.errors > 0)
-		throw new Error(`${url}: ${result.non2xx} non-2xx answers, ${result.errors} errors`);
-	return { perSecond: result.requests.average, p50: result.latency.p50, p99: result.latency.p99 };
+	if (result.non2xx > 0) throw new Error(`${url}: ${result.non2xx} answers were not 2xx`);
+	// Errors are requests autocannon gave up on (its 10 s timeout); they count against the path.
+	return {
+		perSecond: result.requests.average,
+		p50: result.latency.p50,
+		p99: result.latency.p99,
+		failed: result.errors
+	};
 }
 
 export async function runPinnedFetchBenchmarks(): Promise<{ rows: PinnedFetchRow[]; bytes: number }> {
@@ -151,6 +157,7 @@ export async function runPinnedFetchBenchmarks(): Promise<{ rows: PinnedFetchRow
 			'p50 ms': measured.p50.toFixed(1),
 			'p99 ms': measured.p99.toFixed(1),
 			'vs baseline': `${((100 * measured.perSecond) / base.perSecond).toFixed(0)}%`,
+			'timed out': measured.failed,
 			target: target ? `${target.text}: ${target.met ? 'met' : 'MISSED'}` : '—',
 			met: target ? target.met : null
 		});
@@ -160,7 +167,7 @@ export async function runPinnedFetchBenchmarks(): Promise<{ rows: PinnedFetchRow
 				row('baseline: bare node:http, same bytes', base),
 				row('front server, cache hit', cached, {
 					text: '≥ 50% of baseline, p99 < 20 ms',
-					met: cached.perSecond >= 0.5 * base.perSecond && cached.p99 < 20
+					met: cached.perSecond >= 0.5 * base.perSecond && cached.p99 < 20 && cached.failed === 0
 				}),
 				row('SvelteKit path (cache bypassed by a cookie)', app)
 			]
