@@ -3,13 +3,15 @@ import { sequence } from '@sveltejs/kit/hooks';
 import { PROBLEM_CONTENT_TYPE, problem } from '$lib/server/api/problem';
 import { handleAuth, handleGuard } from '$lib/server/auth/request-hooks';
 import { getConfig } from '$lib/server/config';
-import { closeOrm, getOrm } from '$lib/server/db';
+import { closeOrm, getOrm, getReadOrm, usesReadReplica } from '$lib/server/db';
+import { handleCors } from '$lib/server/edge/cors-hook';
 import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
 
 export const init: ServerInit = async () => {
 	const config = getConfig();
 	await getOrm();
+	if (config.DATABASE_READ_URL) await getReadOrm();
 	// Work queued fits from the start, including any left over from before a restart.
 	if (config.CANDLEBOOK_IN_PROCESS_WORKER === 'true') {
 		getAppJobQueue().catch((error: unknown) => logger.error({ err: error }, 'the job queue did not start'));
@@ -36,7 +38,8 @@ const handleRequestLog: Handle = async ({ event, resolve }) => {
 };
 
 const handleDb: Handle = async ({ event, resolve }) => {
-	event.locals.em = (await getOrm()).em.fork();
+	const orm = usesReadReplica(event.request.method, event.url.pathname) ? await getReadOrm() : await getOrm();
+	event.locals.em = orm.em.fork();
 	return resolve(event);
 };
 
@@ -57,7 +60,7 @@ const handleApiProblems: Handle = async ({ event, resolve }) => {
 	return problem(response.status, body.message, body.errors ? { errors: body.errors } : {}, headers);
 };
 
-export const handle = sequence(handleRequestLog, handleDb, handleApiProblems, handleAuth, handleGuard);
+export const handle = sequence(handleRequestLog, handleCors, handleDb, handleApiProblems, handleAuth, handleGuard);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message };

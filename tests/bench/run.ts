@@ -1,9 +1,11 @@
 /**
  * `npm run bench`: times the calibration benchmarks and prints a table (median of repeated runs after
- * warm-up, with the baseline timed in the same process). Sets a non-zero exit code when a target is missed.
+ * warm-up, with the baseline timed in the same process), then the light-curve and pinned-version fetch
+ * benchmarks. Sets a non-zero exit code when a target is missed.
  */
 import { buildCases } from './calibration.bench';
 import { printLightCurveBenchmarks, runLightCurveBenchmarks } from './light-curves.bench';
+import { printPinnedFetchBenchmarks, runPinnedFetchBenchmarks } from './pinned-fetch.bench';
 
 function median(values: number[]): number {
 	const sorted = [...values].sort((a, b) => a - b);
@@ -53,3 +55,7 @@ if (rows.some((row) => row.met === false)) process.exitCode = 1;
 const lightCurveRows = runLightCurveBenchmarks();
 printLightCurveBenchmarks(lightCurveRows);
 if (lightCurveRows.some((row) => row.met === false)) process.exitCode = 1;
+
+const pinnedFetch = await runPinnedFetchBenchmarks();
+printPinnedFetchBenchmarks(pinnedFetch);
+if (pinnedFetch.rows.some((row) => row.met === false)) process.exitCode = 1;

@@ -1,6 +1,6 @@
 /**
  * `npm start`: the project's own PostgreSQL on 127.0.0.1 → migrations → demo seed → build if stale →
- * the production server, with a local fake SMTP server catching its mail (unless SMTP_URL is set) and a
+ * the production server (the front server in serve.ts in front of the SvelteKit build), with a local fake SMTP server catching its mail (unless SMTP_URL is set) and a
  * local fake S3 server keeping uploaded files (unless S3_* names an object store).
  * Ctrl-C stops the server and then the database.
  */
@@ -50,11 +50,15 @@ if (!process.env.SMTP_URL) {
 		`[candlebook] mail goes to a local fake SMTP server (${running.mail.url}); admins read it at /admin/mail`
 	);
 }
-const server = spawn(process.execPath, [join(PROJECT_ROOT, 'build', 'index.js')], {
-	cwd: PROJECT_ROOT,
-	env,
-	stdio: 'inherit'
-});
+const server = spawn(
+	process.execPath,
+	['--import', 'tsx', join(PROJECT_ROOT, 'src', 'lib', 'server', 'ops', 'serve.ts')],
+	{
+		cwd: PROJECT_ROOT,
+		env,
+		stdio: 'inherit'
+	}
+);
 running.server = server;
 console.log(`[candlebook] serving ${env.ORIGIN} (Ctrl-C to stop)`);
 

@@ -1,0 +1,21 @@
+/** The part of autocannon 9's programmatic API the benchmarks use (the package ships no types). */
+declare module 'autocannon' {
+	interface Histogram {
+		average: number;
+		p50: number;
+		p99: number;
+	}
+	interface Result {
+		requests: Histogram;
+		latency: Histogram;
+		non2xx: number;
+		errors: number;
+	}
+	interface Options {
+		url: string;
+		connections?: number;
+		duration?: number;
+		headers?: Record<string, string>;
+	}
+	export default function autocannon(options: Options): Promise<Result>;
+}
