@@ -10,7 +10,7 @@
 import { applyRelationColumnar, coefficientVariance, type StarColumns } from './apply';
 import { getBand } from './bands';
 import { bandExtinctionPerEbv } from './extinction';
-import { periodWarnings } from './populations';
+import { periodWarnings, POPULATIONS } from './populations';
 import type { HostDistanceOptions, HostRejectedStar, SystematicTerm } from './host-distance';
 import { measuredDistanceFromModulus } from './units';
 import type { CalibrationWarning, CoefficientAxis, ExtinctionLawId, PopulationId, Relation } from './types';
@@ -102,6 +102,7 @@ export function hostDistanceBatch(
 	const starWarnings: (readonly CalibrationWarning[])[] = new Array(n);
 	const { ids, periodDays, magErr, ebv, ebvErr, feh, fehErr, populations } = input;
 	const populationCounts = new Map<PopulationId, number>();
+	const population = POPULATIONS[relation.population];
 
 	for (let i = 0; i < n; i++) {
 		const logP = Math.log10(periodDays[i]);
@@ -122,10 +123,9 @@ export function hostDistanceBatch(
 		distanceMpcErr[i] = applied.distancePcErr[i] / PC_PER_MPC;
 
 		let list: CalibrationWarning[] | null = null;
-		const warn = (warning: CalibrationWarning) => (list ??= []).push(warning);
 		const id = ids[i];
 		if (gammaOrNull !== null && !hasFeh) {
-			warn({
+			(list ??= []).push({
 				code: 'metallicity_missing',
 				message: `no [Fe/H]; the relation's pivot ${f0} was used`,
 				star: id,
@@ -134,7 +134,7 @@ export function hostDistanceBatch(
 			});
 		}
 		if (logP < validity.logPeriodMin || logP > validity.logPeriodMax) {
-			warn({
+			(list ??= []).push({
 				code: 'outside_validity_range',
 				message: `log P = ${logP.toFixed(4)} is outside the relation's range [${validity.logPeriodMin}, ${validity.logPeriodMax}]: the relation is extrapolated`,
 				star: id,
@@ -147,7 +147,7 @@ export function hostDistanceBatch(
 			((validity.fehMin !== null && feh![i] < validity.fehMin) ||
 				(validity.fehMax !== null && feh![i] > validity.fehMax))
 		) {
-			warn({
+			(list ??= []).push({
 				code: 'outside_validity_range',
 				message: `[Fe/H] = ${feh![i]} is outside the relation's range [${validity.fehMin}, ${validity.fehMax}]`,
 				star: id,
@@ -156,7 +156,7 @@ export function hostDistanceBatch(
 			});
 		}
 		if (wesenheit && hasEbv) {
-			warn({
+			(list ??= []).push({
 				code: 'reddening_ignored',
 				message: 'a Wesenheit magnitude is reddening-free; the given E(B−V) was not used',
 				star: id,
@@ -164,39 +164,41 @@ export function hostDistanceBatch(
 				details: { ebv: ebv![i] }
 			});
 		} else if (!wesenheit && !hasEbv) {
-			warn({
+			(list ??= []).push({
 				code: 'reddening_missing',
 				message: 'single-band magnitude without E(B−V); no extinction correction was applied',
 				star: id,
 				field: 'ebv'
 			});
 		}
-		const population = populations?.[i] ?? null;
-		if (population !== null) {
-			populationCounts.set(population, (populationCounts.get(population) ?? 0) + 1);
-			if (population !== relation.population) {
-				warn({
+		const starPopulation = populations?.[i] ?? null;
+		if (starPopulation !== null) {
+			populationCounts.set(starPopulation, (populationCounts.get(starPopulation) ?? 0) + 1);
+			if (starPopulation !== relation.population) {
+				(list ??= []).push({
 					code: 'population_mismatch',
-					message: `the star is classified ${population} but the relation is for ${relation.population}`,
+					message: `the star is classified ${starPopulation} but the relation is for ${relation.population}`,
 					star: id,
 					field: 'population',
-					details: { star_population: population, relation_population: relation.population }
+					details: { star_population: starPopulation, relation_population: relation.population }
 				});
 			}
 		}
-		for (const warning of periodWarnings(id, relation.population, periodDays[i])) {
+		if (periodDays[i] < population.rrLyraeLimitDays || periodDays[i] > population.longPeriodLimitDays) {
 			// A period outside the class's range suggests another kind of variable star.
-			warn({
-				code: warning.code,
-				message: warning.message,
-				star: id,
-				field: 'period_days',
-				details: {
-					period_days: periodDays[i],
-					limit_days: warning.details?.limitDays ?? null,
-					population: relation.population
-				}
-			});
+			for (const warning of periodWarnings(id, relation.population, periodDays[i])) {
+				(list ??= []).push({
+					code: warning.code,
+					message: warning.message,
+					star: id,
+					field: 'period_days',
+					details: {
+						period_days: periodDays[i],
+						limit_days: warning.details?.limitDays ?? null,
+						population: relation.population
+					}
+				});
+			}
 		}
 		starWarnings[i] = list ?? NONE;
 	}

@@ -173,7 +173,7 @@ class StarProblems {
 	readonly listed: FieldError[] = [];
 	count = 0;
 	index = 0;
-	label = '';
+	id: string | null = null;
 
 	add(field: string, why: string): void {
 		this.count++;
@@ -223,7 +223,7 @@ export function readStarColumns(stars: readonly unknown[]): StarColumnsInput {
 	for (let i = 0; i < n; i++) {
 		const raw = stars[i];
 		problems.index = i;
-		problems.label = '';
+		problems.id = null;
 		if (raw === null || typeof raw !== 'object' || Array.isArray(raw)) {
 			problems.add('', 'must be an object');
 			continue;
@@ -231,7 +231,7 @@ export function readStarColumns(stars: readonly unknown[]): StarColumnsInput {
 		const star = raw as Record<string, unknown>;
 		const id = star.id;
 		if (typeof id === 'string' && id.length > 0 && id.length <= MAX_ID_LENGTH) {
-			problems.label = ` (star ${JSON.stringify(id)})`;
+			problems.id = id;
 			if (seen.has(id)) problems.add('id', 'duplicate star id');
 			seen.add(id);
 			ids[i] = id;
