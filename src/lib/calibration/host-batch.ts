@@ -27,6 +27,7 @@ export interface HostBatchOptions extends HostDistanceOptions {
 }
 
 export interface HostBatchResult {
+	logPeriod: Float64Array;
 	absMag: Float64Array;
 	absMagErr: Float64Array;
 	mu0: Float64Array;
@@ -217,6 +218,7 @@ export function hostDistanceBatch(
 	const rejectedMask = new Uint8Array(n);
 	for (const star of combined.rejectedIndexes) rejectedMask[star] = 1;
 	return {
+		logPeriod,
 		absMag,
 		absMagErr,
 		mu0: applied.mu0,

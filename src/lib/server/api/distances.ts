@@ -79,6 +79,7 @@ const WarningSchema = z.object({
 
 const DistanceStarResultSchema = z.object({
 	id: z.string(),
+	log_period: z.number(),
 	abs_mag: z.number(),
 	abs_mag_err: z.number(),
 	mu0: z.number(),
@@ -178,10 +179,10 @@ class StarProblems {
 	add(field: string, why: string): void {
 		this.count++;
 		if (this.listed.length < MAX_LISTED_ERRORS) {
-			const where = field ? `/${field}` : '';
+			const star = this.id === null ? '' : ` (star ${JSON.stringify(this.id)})`;
 			this.listed.push({
-				path: `stars/${this.index}${where}`,
-				message: `stars[${this.index}]${field ? `.${field}` : ''}${this.label}: ${why}`
+				path: `stars/${this.index}${field ? `/${field}` : ''}`,
+				message: `stars[${this.index}]${field ? `.${field}` : ''}${star}: ${why}`
 			});
 		}
 	}
@@ -408,6 +409,7 @@ function starResult(computation: DistanceComputation, i: number): DistanceStarRe
 	const { batch, ids } = computation;
 	return {
 		id: ids[i],
+		log_period: batch.logPeriod[i],
 		abs_mag: batch.absMag[i],
 		abs_mag_err: batch.absMagErr[i],
 		mu0: batch.mu0[i],
@@ -461,7 +463,7 @@ export function distanceResponseJson(computation: DistanceComputation): string {
 	for (let i = 0; i < ids.length; i++) {
 		const warnings = batch.starWarnings[i];
 		rows[i] =
-			`{"id":${JSON.stringify(ids[i])},"abs_mag":${numberJson(batch.absMag[i])},"abs_mag_err":${numberJson(batch.absMagErr[i])}` +
+			`{"id":${JSON.stringify(ids[i])},"log_period":${numberJson(batch.logPeriod[i])},"abs_mag":${numberJson(batch.absMag[i])},"abs_mag_err":${numberJson(batch.absMagErr[i])}` +
 			`,"mu0":${numberJson(batch.mu0[i])},"mu0_err":${numberJson(batch.mu0Err[i])}` +
 			`,"distance_mpc":${numberJson(batch.distanceMpc[i])},"distance_mpc_err":${numberJson(batch.distanceMpcErr[i])}` +
 			`,"rejected":${batch.rejectedMask[i] === 1},"warnings":${warnings.length === 0 ? '[]' : JSON.stringify(warnings)}}`;
