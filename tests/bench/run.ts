@@ -3,6 +3,7 @@
  * warm-up, with the baseline timed in the same process). Sets a non-zero exit code when a target is missed.
  */
 import { buildCases } from './calibration.bench';
+import { printDistanceBenchmarks, runDistanceBenchmarks } from './distances.bench';
 import { printLightCurveBenchmarks, runLightCurveBenchmarks } from './light-curves.bench';
 
 function median(values: number[]): number {
@@ -53,3 +54,7 @@ if (rows.some((row) => row.met === false)) process.exitCode = 1;
 const lightCurveRows = runLightCurveBenchmarks();
 printLightCurveBenchmarks(lightCurveRows);
 if (lightCurveRows.some((row) => row.met === false)) process.exitCode = 1;
+
+const distanceRows = runDistanceBenchmarks();
+printDistanceBenchmarks(distanceRows);
+if (distanceRows.some((row) => row.met === false)) process.exitCode = 1;

@@ -17,7 +17,18 @@ export const HOST_COLUMNS = [
 	'feh_err'
 ] as const;
 const OPTIONAL_COLUMNS = ['ebv', 'ebv_err', 'feh', 'feh_err', 'population'] as const;
-const KNOWN_COLUMNS = new Set<string>([...HOST_COLUMNS, 'population']);
+/** Result columns of the worksheet's own CSV export: read past, so an export can be loaded again. */
+const EXPORT_RESULT_COLUMNS = [
+	'abs_mag',
+	'abs_mag_err',
+	'mu0',
+	'mu0_err',
+	'distance_mpc',
+	'distance_mpc_err',
+	'rejected',
+	'warnings'
+];
+const KNOWN_COLUMNS = new Set<string>([...HOST_COLUMNS, 'population', ...EXPORT_RESULT_COLUMNS]);
 export const MAX_HOST_CSV_BYTES = 16 * 1024 * 1024;
 export const MAX_HOST_STARS = 100_000;
 
@@ -81,7 +92,7 @@ export function parseHostCsv(text: string): HostCsvResult {
 	const push = (error: CsvCellError) => {
 		if (errors.length < MAX_ERRORS) errors.push(error);
 	};
-	let headerIndex = rows.findIndex((row) => !isBlank(row) && !row[0].trimStart().startsWith('#'));
+	const headerIndex = rows.findIndex((row) => !isBlank(row) && !row[0].trimStart().startsWith('#'));
 	if (headerIndex < 0)
 		return { ok: false, errors: [{ line: 1, column: '', value: '', message: 'no header line and no stars' }] };
 	const header = rows[headerIndex].map((cell) => cell.trim());
@@ -135,6 +146,7 @@ export function parseHostCsv(text: string): HostCsvResult {
 				}
 				return;
 			}
+			if (EXPORT_RESULT_COLUMNS.includes(name)) return;
 			if (name === 'population') {
 				if (value === '') star.population = null;
 				else if ((POPULATION_IDS as readonly string[]).includes(value)) star.population = value as PopulationId;
