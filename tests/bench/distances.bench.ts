@@ -10,9 +10,9 @@ import { pathToFileURL } from 'node:url';
 import { hostDistanceBatch } from '../../src/lib/calibration/host-batch';
 import type { Relation } from '../../src/lib/calibration/types';
 import {
-	distanceResponseJson,
 	readDistanceEnvelope,
 	readStarColumns,
+	toDistanceResponse,
 	type DistanceComputation
 } from '../../src/lib/server/api/distances';
 import type { BenchCase } from './calibration.bench';
@@ -75,7 +75,7 @@ function endpointWork(body: string): string {
 		batch: hostDistanceBatch(relation, columns),
 		warnings: []
 	};
-	return distanceResponseJson(computation);
+	return JSON.stringify(toDistanceResponse(computation));
 }
 
 export function buildDistanceCases(): BenchCase[] {

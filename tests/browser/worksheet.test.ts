@@ -71,6 +71,7 @@ const expected = combineHostDistance(
 );
 const VELOCITY = 2100;
 
+const origin = `http://127.0.0.1:${process.env.CANDLEBOOK_TEST_PORT ?? 4173}`;
 let orm: MikroORM;
 let pinned: { ref: string; digest: string };
 
@@ -107,7 +108,7 @@ async function checkDistanceAndH0(page: Page) {
 	await expect(page.getByTestId('star-results').locator('tbody tr')).toHaveCount(30);
 	expect(expected.rejected.map((r) => r.star)).toContain('LK-008 (invented)');
 	await expect(page.getByTestId('star-results').getByRole('row', { name: /LK-008/ })).toContainText('σ-clipped');
-	await expect(page.getByText(/Extrapolation:/)).toContainText('1 star lies outside');
+	await expect(page.getByRole('alert').filter({ hasText: 'Extrapolation:' })).toContainText('1 star lies outside');
 
 	await page.getByLabel('Velocity (km/s)').fill(String(VELOCITY));
 	await page.getByLabel('± (km/s)').fill('15');
@@ -290,7 +291,7 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 		expect(body.combined.n_used).toBe(engine.nUsed);
 	});
 
-	test('100 000 stars end to end over HTTP, against a same-run baseline', async ({ request }) => {
+	test('100 000 stars end to end over HTTP, against a same-run baseline', async () => {
 		test.setTimeout(120_000);
 		const many = Array.from({ length: 100_000 }, (_, i) => ({
 			id: `LK-${i} (invented)`,
@@ -299,30 +300,31 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 			mean_mag_err: 0.05
 		}));
 		const body = JSON.stringify({ relation: pinned.ref, stars: many });
+		// Node's own fetch, not Playwright's request context, which relays bodies through its driver.
+		const post = async (text: string) => {
+			const started = performance.now();
+			const response = await fetch(`${origin}/api/v1/distances`, {
+				method: 'POST',
+				headers: { 'content-type': 'application/json' },
+				body: text
+			});
+			const answer = await response.text();
+			return { ms: performance.now() - started, status: response.status, bytes: answer.length };
+		};
 		let fastest = Infinity;
 		let bytes = 0;
 		for (let round = 0; round < 3; round++) {
-			const started = performance.now();
-			const response = await request.post('/api/v1/distances', {
-				data: body,
-				headers: { 'content-type': 'application/json' }
-			});
-			const text = await response.text();
-			fastest = Math.min(fastest, performance.now() - started);
-			expect(response.status()).toBe(200);
-			bytes = text.length;
+			const result = await post(body);
+			expect(result.status).toBe(200);
+			fastest = Math.min(fastest, result.ms);
+			bytes = result.bytes;
 		}
-		// Baseline: the same bytes to the same server, refused at once (the relation does not exist after parsing).
+		// Baseline: the same bytes to the same server, refused once parsed (the relation does not exist).
 		let baseline = Infinity;
 		for (let round = 0; round < 3; round++) {
-			const started = performance.now();
-			const response = await request.post('/api/v1/distances', {
-				data: body.replace(pinned.ref, 'no-such-relation@1'),
-				headers: { 'content-type': 'application/json' }
-			});
-			await response.text();
-			baseline = Math.min(baseline, performance.now() - started);
-			expect(response.status()).toBe(404);
+			const result = await post(body.replace(pinned.ref, 'no-such-relation@1'));
+			expect(result.status).toBe(404);
+			baseline = Math.min(baseline, result.ms);
 		}
 		console.info(
 			`POST /api/v1/distances, 100 000 stars: ${fastest.toFixed(0)} ms end to end (${(body.length / 1e6).toFixed(1)} MB in, ` +

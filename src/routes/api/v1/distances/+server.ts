@@ -1,8 +1,9 @@
+import { json } from '@sveltejs/kit';
 import {
 	computeDistances,
 	DISTANCE_BODY_LIMIT_BYTES,
-	distanceResponseJson,
-	readDistanceEnvelope
+	readDistanceEnvelope,
+	toDistanceResponse
 } from '$lib/server/api/distances';
 import { fail } from '$lib/server/api/errors';
 import { readBodyWithLimit } from '$lib/server/api/request-body';
@@ -22,8 +23,7 @@ export const POST: RequestHandler = async ({ locals, request }) => {
 	}
 	return registryResponse(async () => {
 		const computation = await computeDistances(locals.em, readerOf(locals), readDistanceEnvelope(body));
-		return new Response(distanceResponseJson(computation), {
-			headers: { 'content-type': 'application/json', 'cache-control': 'no-store' }
-		});
+		// Plain objects through JSON.stringify: in Node 20 that beats writing the text star by star.
+		return json(toDistanceResponse(computation), { headers: { 'cache-control': 'no-store' } });
 	});
 };
