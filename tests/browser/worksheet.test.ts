@@ -11,6 +11,7 @@ import {
 import { pinPublishedRelation } from '../support/pinned-relation';
 import { hasReferenceData, readReferenceFile } from '../support/reference-data';
 import { openOrm, uniqueSlug } from './support/accounts';
+import { expectMatchesOpenApi } from './support/openapi-contract';
 
 /**
  * The worksheet from CSV to H0, with and without JavaScript, and POST /api/v1/distances over HTTP.
@@ -198,6 +199,7 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 	}) => {
 		const response = await request.post('/api/v1/distances', { data: { relation: pinned.ref, stars } });
 		expect(response.status()).toBe(200);
+		await expectMatchesOpenApi(request, response, 'POST /api/v1/distances');
 		const body = await response.json();
 		expect(body.relation).toMatchObject({ ref: pinned.ref, digest: pinned.digest, status: 'current' });
 		expect(body.results).toHaveLength(30);
@@ -218,7 +220,7 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 			}
 		});
 		expect(bad.status()).toBe(422);
-		expect(bad.headers()['content-type']).toContain('application/problem+json');
+		await expectMatchesOpenApi(request, bad, 'POST /api/v1/distances');
 		const problem = await bad.json();
 		expect(problem.errors.map((e: { path: string }) => e.path)).toEqual([
 			'stars/1/mean_mag_err',
@@ -230,6 +232,7 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 			data: { relation: pinned.ref, stars: Array.from({ length: 100_001 }, (_, i) => ({ ...stars[0], id: `s${i}` })) }
 		});
 		expect(many.status()).toBe(413);
+		await expectMatchesOpenApi(request, many, 'POST /api/v1/distances');
 
 		const hidden = await pinPublishedRelation(orm, {
 			slug: uniqueSlug('worksheet-hidden'),
@@ -239,6 +242,7 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 		});
 		const missing = await request.post('/api/v1/distances', { data: { relation: hidden.ref, stars } });
 		expect(missing.status()).toBe(404);
+		await expectMatchesOpenApi(request, missing, 'POST /api/v1/distances');
 	});
 
 	test('reproduces the engine’s OGLE LMC worked example: μ_LMC = 18.477 from the OGLE-III W_I relation', async ({

@@ -1,10 +1,19 @@
 import { fail } from '@sveltejs/kit';
+import { ACCESS_POLICY } from '$lib/server/auth/access-policy';
 import { readerOf } from '$lib/server/registry/http';
 import { currentPublicVersions } from '$lib/server/worksheet/relation-choices';
 import { readWorksheetForm, runWorksheet, type WorksheetOutcome } from '$lib/server/worksheet/worksheet-run';
 import type { Actions, PageServerLoad } from './$types';
 
-export const load: PageServerLoad = async ({ locals }) => ({ choices: await currentPublicVersions(locals.em) });
+/** The raw time-series step needs the light-curve analysis endpoint; it is offered only where that exists. */
+const LIGHT_CURVE_ANALYSIS = ACCESS_POLICY.some(
+	(rule) => rule.route === '/api/v1/light-curves/analyse' && rule.method === 'POST'
+);
+
+export const load: PageServerLoad = async ({ locals }) => ({
+	choices: await currentPublicVersions(locals.em),
+	lightCurveAnalysis: LIGHT_CURVE_ANALYSIS
+});
 
 /** Only what the page shows; the record for the export buttons is rebuilt in the page from these. */
 function answer(outcome: WorksheetOutcome) {

@@ -19,7 +19,7 @@ import { RegistryError } from '../registry/errors';
 import { findVersion } from '../registry/versions';
 import type { FieldError } from './problem';
 import { parseRef } from './pinned-version';
-import { registerApiSchema } from './schema-registry';
+import { describeOperation, registerApiSchema } from './schema-registry';
 
 /** POST /api/v1/distances: a pinned relation applied to a host galaxy's Cepheids → per-star and combined μ0. */
 const OPERATION = 'POST /api/v1/distances';
@@ -140,6 +140,22 @@ export const DistanceResponseSchema = registerApiSchema(
 	}
 );
 export type DistanceResponse = z.infer<typeof DistanceResponseSchema>;
+
+const problemJson = { schema: 'Problem', mediaTypes: ['application/problem+json'] };
+describeOperation(OPERATION, {
+	description:
+		'Applies a pinned relation version to one host galaxy\'s Cepheids: per-star M, μ0 and distance with warnings ' +
+		'(extrapolation beyond the validity range, population mismatch, missing reddening), and the σ-clipped ' +
+		'inverse-variance host distance with statistical and systematic errors kept apart. Public versions need no ' +
+		'token; a private or embargoed version answers 404 to callers who may not see it.',
+	responses: {
+		'400': { description: 'The body is not JSON', ...problemJson },
+		'404': { description: 'No such version, or not one the caller may see', ...problemJson },
+		'413': { description: `More than ${MAX_DISTANCE_STARS} stars, or a body over the limit`, ...problemJson },
+		'415': { description: 'The body is not application/json', ...problemJson },
+		'422': { description: 'Bad stars (each named as stars/i/field) or an unusable extinction law', ...problemJson }
+	}
+});
 export type DistanceStarResult = z.infer<typeof DistanceStarResultSchema>;
 
 /** The stars as typed columns, ready for the engine. */
