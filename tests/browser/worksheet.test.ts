@@ -119,7 +119,9 @@ async function checkDistanceAndH0(page: Page) {
 	await expect(page.getByTestId('h0-budget')).toContainText(
 		`peculiar velocity: ${((250 / VELOCITY) * 100).toFixed(1)}%`
 	);
-	await expect(page.getByTestId('hubble-result').getByText(/Caution:/)).toContainText('peculiar velocity of 250 km/s');
+	await expect(page.getByTestId('hubble-result').getByRole('alert').filter({ hasText: 'Caution:' })).toContainText(
+		'peculiar velocity of 250 km/s'
+	);
 }
 
 async function exportJson(page: Page) {
@@ -335,6 +337,8 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 				`${(bytes / 1e6).toFixed(1)} MB out); upload + parse + refuse: ${baseline.toFixed(0)} ms; load average ${loadavg()[0].toFixed(1)}`
 		);
 		expect(bytes).toBeGreaterThan(10_000_000);
-		expect(fastest).toBeLessThan(Math.max(1000, 4 * baseline));
+		// The answer is four times the request and every one of its 700 000 numbers is formatted, so the whole
+		// exchange costs several no-work round trips of the request; a per-star slowdown (or worse) breaks this.
+		expect(fastest).toBeLessThan(15 * baseline);
 	});
 });
