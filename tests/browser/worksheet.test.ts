@@ -148,7 +148,9 @@ test('with JavaScript: upload a CSV, get per-star results, the combined μ0, H0 
 	await fillHost(page, 'upload');
 	await expect(page.getByLabel('…or paste it')).toHaveValue(csv);
 	await checkDistanceAndH0(page);
-	await expect(page.getByTestId('host-pl-diagram').locator('svg[role="img"]')).toBeVisible();
+	await expect(
+		page.getByTestId('host-pl-diagram').getByRole('img', { name: /Host PL diagram: 30 stars/ })
+	).toBeVisible();
 	await exportJson(page);
 	// In place: the page asked the API, never its own form actions.
 	expect(apiCalls).toContain('/api/v1/distances');
