@@ -144,7 +144,7 @@ export type DistanceResponse = z.infer<typeof DistanceResponseSchema>;
 const problemJson = { schema: 'Problem', mediaTypes: ['application/problem+json'] };
 describeOperation(OPERATION, {
 	description:
-		'Applies a pinned relation version to one host galaxy\'s Cepheids: per-star M, μ0 and distance with warnings ' +
+		"Applies a pinned relation version to one host galaxy's Cepheids: per-star M, μ0 and distance with warnings " +
 		'(extrapolation beyond the validity range, population mismatch, missing reddening), and the σ-clipped ' +
 		'inverse-variance host distance with statistical and systematic errors kept apart. Public versions need no ' +
 		'token; a private or embargoed version answers 404 to callers who may not see it.',
