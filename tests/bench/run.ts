@@ -4,6 +4,7 @@
  * benchmarks. Sets a non-zero exit code when a target is missed.
  */
 import { buildCases } from './calibration.bench';
+import { printDistanceBenchmarks, runDistanceBenchmarks } from './distances.bench';
 import { printLightCurveBenchmarks, runLightCurveBenchmarks } from './light-curves.bench';
 import { printPinnedFetchBenchmarks, runPinnedFetchBenchmarks } from './pinned-fetch.bench';
 
@@ -59,3 +60,7 @@ if (lightCurveRows.some((row) => row.met === false)) process.exitCode = 1;
 const pinnedFetch = await runPinnedFetchBenchmarks();
 printPinnedFetchBenchmarks(pinnedFetch);
 if (pinnedFetch.rows.some((row) => row.met === false)) process.exitCode = 1;
+
+const distanceRows = runDistanceBenchmarks();
+printDistanceBenchmarks(distanceRows);
+if (distanceRows.some((row) => row.met === false)) process.exitCode = 1;

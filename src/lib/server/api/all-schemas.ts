@@ -4,6 +4,7 @@
  */
 import './account-schemas';
 import './hubble';
+import './distances';
 import '../registry/schemas';
 import './read-schemas';
 import './export-schemas';
