@@ -31,6 +31,7 @@ export interface Difference {
 }
 
 export interface Reproduction {
+	/** The recomputed digest equals the version's, and the stored content equals the rebuilt one. */
 	digestMatches: boolean;
 	digest: string;
 	recomputedDigest: string;
@@ -125,7 +126,8 @@ export function reproduceContent(
 	const { digest: recomputedDigest, ...rebuiltContent } = rebuilt;
 	const differences = jsonDifferences(storedContent, rebuiltContent);
 	return {
-		digestMatches: recomputedDigest === stored.digest,
+		// A stored row whose content no longer hashes to its digest differs from the rebuilt content.
+		digestMatches: recomputedDigest === stored.digest && differences.length === 0,
 		digest: stored.digest,
 		recomputedDigest,
 		maxRelativeDifference: differences.reduce((max, difference) => Math.max(max, relativeDifference(difference)), 0),
