@@ -4,8 +4,8 @@ import { digestString, isBandId, POPULATION_IDS, relationVersionContentSchema } 
 import { ANCHOR_TYPES, RELATION_VISIBILITIES } from '../entities/relation.entity';
 import { VERSION_STATUSES } from '../entities/version-lifecycle.entity';
 import { CATALOGUE_SORTS } from '../registry/relation-catalogue';
-import { CITATION_STYLES } from '../registry/version-citation';
-import { registerApiSchema } from './schema-registry';
+import { CITATION_MEDIA_TYPES, CITATION_STYLES } from '../registry/version-citation';
+import { describeOperation, registerApiSchema } from './schema-registry';
 
 const slug = z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*$/);
 const ref = z.string().regex(/^[a-z0-9]+(?:-[a-z0-9]+)*@[1-9]\d*$/);
@@ -293,3 +293,141 @@ export const DataCiteMetadataSchema = registerApiSchema(
 	}),
 	{ id: 'DataCiteMetadata', description: 'DataCite Metadata Schema 4 attributes, ready to submit when minting a DOI.' }
 );
+
+export const CitationJsonSchema = registerApiSchema(z.union([CslJsonSchema, DataCiteMetadataSchema]), {
+	id: 'CitationJson',
+	description: 'A citation in one of the JSON styles: CSL-JSON or DataCite metadata.'
+});
+
+// What each read operation's OpenAPI entry says beyond its 200 JSON schema.
+const NOT_VISIBLE = {
+	description: 'No such resource, or one the caller may not see (private relation, embargoed version)',
+	schema: 'Problem',
+	mediaTypes: ['application/problem+json']
+};
+const BAD_QUERY = {
+	description: 'A bad query parameter; `errors` names it',
+	schema: 'Problem',
+	mediaTypes: ['application/problem+json']
+};
+const NOT_MODIFIED = { description: 'The version is unchanged (If-None-Match matched the ETag)', mediaTypes: [] };
+const IF_NONE_MATCH = {
+	name: 'If-None-Match',
+	in: 'header' as const,
+	description: 'The ETag (the quoted digest) of a copy the client holds.'
+};
+const enumParam = (values: readonly string[]) => ({ type: 'string', enum: [...values] });
+
+describeOperation('GET /api/v1/relations', {
+	description:
+		'The catalogue of relations the caller may see (group-private ones only for members and admins, or their tokens with read:private), keyset-paged.',
+	parameters: [
+		{ name: 'band', in: 'query', description: 'A band id from /api/v1/bands, e.g. W_VI.' },
+		{ name: 'population', in: 'query', schema: enumParam(POPULATION_IDS) },
+		{ name: 'anchor', in: 'query', description: 'The anchor type.', schema: enumParam(ANCHOR_TYPES) },
+		{ name: 'state', in: 'query', schema: enumParam(RELATION_STATES) },
+		{ name: 'q', in: 'query', description: 'Words in the slug, title or description (case-insensitive).' },
+		{ name: 'sort', in: 'query', description: 'Default `title`.', schema: enumParam(CATALOGUE_SORTS) },
+		{ name: 'cursor', in: 'query', description: 'The `next_cursor` of the previous page.' },
+		{
+			name: 'limit',
+			in: 'query',
+			description: '1 to 200, default 50.',
+			schema: { type: 'integer', minimum: 1, maximum: 200 }
+		}
+	],
+	responses: { '422': BAD_QUERY }
+});
+
+describeOperation('GET /api/v1/relations/{slug}', { responses: { '404': NOT_VISIBLE } });
+
+for (const operation of ['GET /api/v1/relations/{slug}/versions/{n}', 'GET /api/v1/pins/{ref}']) {
+	describeOperation(operation, {
+		description:
+			'The frozen bytes: ETag is the digest, Content-Digest (RFC 9530) the sha-256 of the body; the same bytes on every fetch.',
+		parameters: [IF_NONE_MATCH],
+		responses: { '304': NOT_MODIFIED, '404': NOT_VISIBLE }
+	});
+}
+
+describeOperation('GET /api/v1/relations/{slug}/latest', {
+	description:
+		'The current version’s pinned bytes, kept by caches for 60 s; Content-Location and Link rel="canonical" name the pin to keep.',
+	parameters: [IF_NONE_MATCH],
+	responses: {
+		'304': NOT_MODIFIED,
+		'404': { ...NOT_VISIBLE, description: 'No such relation, or none of its versions is current' }
+	}
+});
+
+describeOperation('GET /api/v1/relations/{slug}/diff', {
+	parameters: [
+		{
+			name: 'from',
+			in: 'query',
+			required: true,
+			description: 'A version number.',
+			schema: { type: 'integer', minimum: 1 }
+		},
+		{
+			name: 'to',
+			in: 'query',
+			required: true,
+			description: 'A version number.',
+			schema: { type: 'integer', minimum: 1 }
+		}
+	],
+	responses: {
+		'404': NOT_VISIBLE,
+		'422': { ...BAD_QUERY, description: 'from or to is not a version the caller may see' }
+	}
+});
+
+describeOperation('GET /api/v1/digests/{digest}', {
+	responses: { '404': NOT_VISIBLE, '422': { ...BAD_QUERY, description: 'Not a digest of the form sha256:<64 hex>' } }
+});
+
+describeOperation('GET /api/v1/stars', {
+	parameters: [
+		{ name: 'q', in: 'query', required: true, description: 'A star’s name or cross id.' },
+		{ name: 'cursor', in: 'query', description: 'The `next_cursor` of the previous page.' },
+		{
+			name: 'limit',
+			in: 'query',
+			description: '1 to 200, default 50.',
+			schema: { type: 'integer', minimum: 1, maximum: 200 }
+		}
+	],
+	responses: { '422': BAD_QUERY }
+});
+
+describeOperation('POST /api/v1/relations/{slug}/versions/{n}/reproduce', {
+	responses: {
+		'404': NOT_VISIBLE,
+		'409': {
+			description: 'The frozen calibrator revision is missing',
+			schema: 'Problem',
+			mediaTypes: ['application/problem+json']
+		},
+		'422': {
+			description: 'The engine refused the frozen spec',
+			schema: 'Problem',
+			mediaTypes: ['application/problem+json']
+		}
+	}
+});
+
+describeOperation('GET /api/v1/relations/{slug}/versions/{n}/citation', {
+	description:
+		'A citation naming slug, version, digest, URL, approvers (with ORCID iDs where known) and the calibrator set’s required citations.',
+	parameters: [{ name: 'style', in: 'query', description: 'Default `text`.', schema: enumParam(CITATION_STYLES) }],
+	responses: {
+		'200': {
+			description: 'text/plain, BibTeX, CSL-JSON (a list of one dataset item) or DataCite Metadata Schema 4 attributes',
+			schema: 'CitationJson',
+			mediaTypes: CITATION_STYLES.map((style) => CITATION_MEDIA_TYPES[style])
+		},
+		'404': NOT_VISIBLE,
+		'422': BAD_QUERY
+	}
+});
