@@ -1,5 +1,6 @@
 import { renderMarkdown } from '../text/markdown';
 import type { CatalogueRow, RelationDetail, VersionSummary } from './relation-catalogue';
+import type { StarAppearance } from './star-search';
 
 /** The read API's snake_case JSON for catalogue rows and version summaries; fields are whitelisted. */
 const iso = (date: Date | null) => date?.toISOString() ?? null;
@@ -47,5 +48,27 @@ export function relationDetailToWire({ relation, versions }: RelationDetail) {
 		description: relation.description,
 		description_html: renderMarkdown(relation.description),
 		versions: versions.map((version) => versionSummaryToWire(relation.slug, version))
+	};
+}
+
+export function starAppearanceToWire(item: StarAppearance) {
+	return {
+		star: item.star,
+		cross_id: item.crossId,
+		calibrator_set: item.calibratorSet,
+		revision: item.revision,
+		digest: item.digest,
+		href: item.href,
+		relation_versions: item.versions.map((use) => ({
+			ref: `${use.relation}@${use.version}`,
+			relation: use.relation,
+			version: use.version,
+			digest: use.digest,
+			href: use.href,
+			usage: use.usage,
+			reason: use.reason,
+			detail: use.detail,
+			standardized_residual: use.standardizedResidual
+		}))
 	};
 }

@@ -2,6 +2,7 @@ import { json } from '@sveltejs/kit';
 import { StarQuerySchema } from '$lib/server/api/read-schemas';
 import { readerOf, registryResponse } from '$lib/server/registry/http';
 import { badParameter, parseQuery, VIEWER_DEPENDENT_HEADERS } from '$lib/server/registry/read-http';
+import { starAppearanceToWire } from '$lib/server/registry/read-wire';
 import { findStar } from '$lib/server/registry/star-search';
 import type { RequestHandler } from './$types';
 
@@ -28,25 +29,7 @@ export const GET: RequestHandler = ({ locals, url }) =>
 		return json(
 			{
 				q: query.q,
-				items: page.items.map((item) => ({
-					star: item.star,
-					cross_id: item.crossId,
-					calibrator_set: item.calibratorSet,
-					revision: item.revision,
-					digest: item.digest,
-					href: item.href,
-					relation_versions: item.versions.map((use) => ({
-						ref: `${use.relation}@${use.version}`,
-						relation: use.relation,
-						version: use.version,
-						digest: use.digest,
-						href: use.href,
-						usage: use.usage,
-						reason: use.reason,
-						detail: use.detail,
-						standardized_residual: use.standardizedResidual
-					}))
-				})),
+				items: page.items.map(starAppearanceToWire),
 				next_cursor: page.nextAfter ? encode(page.nextAfter) : null
 			},
 			{ headers: VIEWER_DEPENDENT_HEADERS }

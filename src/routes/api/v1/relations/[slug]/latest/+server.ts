@@ -15,6 +15,11 @@ export const GET: RequestHandler = ({ locals, params, request, url }) =>
 		const pin = pinHref(params.slug, number);
 		return pinnedVersionResponse(locals.em, reader, params.slug, number, request.headers.get('if-none-match'), {
 			publicCacheControl: 'public, max-age=60',
-			headers: { 'content-location': pin, link: `<${url.origin}${pin}>; rel="canonical"` }
+			// Which version is current depends on who asks (an embargoed version is current only for its group).
+			headers: {
+				'content-location': pin,
+				link: `<${url.origin}${pin}>; rel="canonical"`,
+				vary: 'Authorization, Cookie'
+			}
 		});
 	});
