@@ -4,6 +4,12 @@ import type { Actor } from '../registry/actor';
 import { findVersion, isEmbargoed } from '../registry/versions';
 import type { EntityManager } from '@mikro-orm/postgresql';
 
+export interface PinnedResponseOptions {
+	/** For a URL whose target moves (`/latest`): how long shared caches may keep a public answer. */
+	publicCacheControl?: string;
+	headers?: Record<string, string>;
+}
+
 /**
  * One frozen version as pipelines pin it: exactly its frozen content plus `digest`, as RFC 8785
  * canonical JSON so the bytes never change. ETag is the digest; public, unembargoed versions are
@@ -14,7 +20,8 @@ export async function pinnedVersionResponse(
 	reader: Actor | null,
 	slug: string,
 	number: number,
-	ifNoneMatch: string | null
+	ifNoneMatch: string | null,
+	options: PinnedResponseOptions = {}
 ): Promise<Response> {
 	const { relation, version, lifecycle } = await findVersion(em, reader, slug, number);
 	const body = new TextEncoder().encode(canonicalJson(version.content));
@@ -25,8 +32,12 @@ export async function pinnedVersionResponse(
 		etag,
 		'content-digest': contentDigest(body),
 		...(isPublic
-			? { 'cache-control': 'public, max-age=31536000, immutable', 'access-control-allow-origin': '*' }
-			: { 'cache-control': 'private, no-cache', vary: 'Authorization, Cookie' })
+			? {
+					'cache-control': options.publicCacheControl ?? 'public, max-age=31536000, immutable',
+					'access-control-allow-origin': '*'
+				}
+			: { 'cache-control': 'private, no-cache', vary: 'Authorization, Cookie' }),
+		...options.headers
 	};
 	const tags = (ifNoneMatch ?? '').split(',').map((tag) => tag.trim().replace(/^W\//, ''));
 	if (tags.includes(etag) || tags.includes('*')) return new Response(null, { status: 304, headers });

@@ -10,6 +10,7 @@ import type { ProposalEntity } from '../entities/proposal.entity';
 import type { ProposalView } from './proposals';
 import { isEmbargoed } from './versions';
 import type { RevisionDiff } from '../../calibration/index';
+import type { RelationComparison } from '../../review/comparison';
 
 /** Registry entities → the API's snake_case JSON, one mapper per resource; fields are whitelisted. */
 const iso = (date: Date | null | undefined) => date?.toISOString() ?? null;
@@ -164,6 +165,32 @@ function withoutIdentity(content: ProposalView['proposed']) {
 	return rest;
 }
 
+/** A comparison of two relations (a proposal and its base, or two versions), with the calibrator diff. */
+export function comparisonToWire(comparison: RelationComparison, calibrators: RevisionDiff | null) {
+	return {
+		coefficients: comparison.coefficients.map((c) => ({
+			name: c.name,
+			base: c.base,
+			base_error: c.baseError,
+			proposed: c.proposed,
+			proposed_error: c.proposedError,
+			delta: c.delta,
+			delta_over_sigma: c.deltaOverSigma
+		})),
+		settings: comparison.settings,
+		predictions: comparison.predictions.map((p) => ({
+			log_period: p.logPeriod,
+			base: p.base,
+			base_error: p.baseError,
+			proposed: p.proposed,
+			proposed_error: p.proposedError,
+			delta: p.delta
+		})),
+		rationale: comparison.rationale,
+		calibrators: calibrators ? revisionDiffToWire(calibrators) : null
+	};
+}
+
 export function proposalToWire(view: ProposalView) {
 	const { proposal, comparison } = view;
 	return {
@@ -178,28 +205,7 @@ export function proposalToWire(view: ProposalView) {
 		available_commands: view.availableCommands,
 		// What would be frozen, without the identity an approval gives it (ref, version, approvers, date).
 		proposed: withoutIdentity(view.proposed),
-		comparison: {
-			coefficients: comparison.coefficients.map((c) => ({
-				name: c.name,
-				base: c.base,
-				base_error: c.baseError,
-				proposed: c.proposed,
-				proposed_error: c.proposedError,
-				delta: c.delta,
-				delta_over_sigma: c.deltaOverSigma
-			})),
-			settings: comparison.settings,
-			predictions: comparison.predictions.map((p) => ({
-				log_period: p.logPeriod,
-				base: p.base,
-				base_error: p.baseError,
-				proposed: p.proposed,
-				proposed_error: p.proposedError,
-				delta: p.delta
-			})),
-			rationale: comparison.rationale,
-			calibrators: view.calibrators ? revisionDiffToWire(view.calibrators) : null
-		},
+		comparison: comparisonToWire(comparison, view.calibrators),
 		comments: view.comments.map((comment) => ({
 			id: comment.id,
 			author: { id: comment.author.id, display_name: comment.author.displayName },

@@ -1,0 +1,175 @@
+import type { EntityManager } from '@mikro-orm/postgresql';
+import {
+	CalibrationInputError,
+	runRefit,
+	sealRelationVersion,
+	toCalibratorRows,
+	versionContentFromRefit,
+	type CanonicalRow,
+	type RefitSpec,
+	type RelationVersionContent
+} from '../../calibration/index';
+import { CalibratorRevision } from '../entities/calibrator-revision.entity';
+import { AnalysisJob } from '../entities/analysis-job.entity';
+import { Proposal } from '../entities/proposal.entity';
+import type { Actor } from './actor';
+import { revisionRows } from './calibrator-sets';
+import { RegistryError } from './errors';
+import type { FitInput } from './fits';
+import { findVersion } from './versions';
+
+/**
+ * Reproducing a frozen version: its recorded fit spec run again by the engine on the recorded
+ * calibrator revision, the content rebuilt with the version's own identity (ref, approvers, date), and
+ * the digest recomputed by the rule. Everything that differs is listed, leaf by leaf.
+ */
+export interface Difference {
+	/** Dotted path into the content, with [i] for array items. */
+	path: string;
+	stored: unknown;
+	recomputed: unknown;
+}
+
+export interface Reproduction {
+	/** The recomputed digest equals the version's, and the stored content equals the rebuilt one. */
+	digestMatches: boolean;
+	digest: string;
+	recomputedDigest: string;
+	/** The largest |stored − recomputed| / max(|stored|, |recomputed|) over numbers; 0 when all agree. */
+	maxRelativeDifference: number;
+	differences: Difference[];
+}
+
+type Stored = RelationVersionContent & { digest: string };
+
+/**
+ * The engine's spec from a frozen `fit` block. A fitted parallax offset is frozen as the total found
+ * (prior + fitted), so the prior it started from is taken from the original request when given.
+ */
+export function specFromFrozen(content: RelationVersionContent, fittedOffsetPrior: number | null = null): RefitSpec {
+	const { fit } = content;
+	const offset = fit.parallax_offset;
+	return {
+		bandId: content.band,
+		population: fit.population,
+		anchor: fit.anchor,
+		form: content.form,
+		method: fit.method,
+		pivotLogPeriod: content.pivot_log_period,
+		pivotFeh: content.pivot_feh,
+		periodFilter: { logPeriodMin: fit.period_filter.log_period_min, logPeriodMax: fit.period_filter.log_period_max },
+		fundamentalise: fit.fundamentalised,
+		fixedSlope: fit.fixed_slope,
+		fixedZeroPoint: fit.fixed_zero_point,
+		clipping: fit.clipping ? { sigma: fit.clipping.sigma, maxIterations: fit.clipping.max_iterations } : null,
+		extinctionLaw: fit.extinction_law,
+		rV: fit.r_v,
+		parallaxOffset: offset
+			? {
+					mode: offset.mode,
+					value: offset.mode === 'fitted' && fittedOffsetPrior !== null ? fittedOffsetPrior : offset.value,
+					error: offset.error
+				}
+			: null,
+		bootstrap: fit.bootstrap
+			? { resamples: fit.bootstrap.resamples, seed: fit.bootstrap.seed, level: fit.bootstrap.level }
+			: null,
+		weightedCovariance: fit.weighted_covariance ?? 'absolute',
+		assumedIntrinsicScatter: fit.assumed_intrinsic_scatter
+	};
+}
+
+/** Leaf-by-leaf differences between two JSON values. */
+export function jsonDifferences(stored: unknown, recomputed: unknown, path = ''): Difference[] {
+	const isObject = (value: unknown): value is Record<string, unknown> =>
+		value !== null && typeof value === 'object' && !Array.isArray(value);
+	if (Array.isArray(stored) && Array.isArray(recomputed)) {
+		const length = Math.max(stored.length, recomputed.length);
+		return Array.from({ length }, (_, i) =>
+			jsonDifferences(stored[i] ?? null, recomputed[i] ?? null, `${path}[${i}]`)
+		).flat();
+	}
+	if (isObject(stored) && isObject(recomputed)) {
+		const keys = [...new Set([...Object.keys(stored), ...Object.keys(recomputed)])].sort();
+		return keys.flatMap((key) =>
+			jsonDifferences(stored[key] ?? null, recomputed[key] ?? null, path ? `${path}.${key}` : key)
+		);
+	}
+	return Object.is(stored, recomputed) ? [] : [{ path: path || '(root)', stored, recomputed }];
+}
+
+function relativeDifference({ stored, recomputed }: Difference): number {
+	if (typeof stored !== 'number' || typeof recomputed !== 'number') return 0;
+	const scale = Math.max(Math.abs(stored), Math.abs(recomputed));
+	return scale === 0 ? 0 : Math.abs(stored - recomputed) / scale;
+}
+
+/** Reruns the frozen spec on the rows and compares the rebuilt content with the stored one. Pure. */
+export function reproduceContent(
+	stored: Stored,
+	rows: readonly CanonicalRow[],
+	fittedOffsetPrior: number | null = null
+): Reproduction {
+	const result = runRefit(toCalibratorRows(rows), specFromFrozen(stored, fittedOffsetPrior));
+	const [slug] = stored.ref.split('@');
+	const rebuilt = sealRelationVersion(
+		versionContentFromRefit(result, {
+			slug,
+			version: stored.version,
+			magnitudeSystem: stored.magnitude_system,
+			calibratorSet: { ...stored.calibrator_set },
+			approvedBy: stored.approved_by.map((approver) => ({ ...approver })),
+			approvedAt: stored.approved_at
+		})
+	);
+	const { digest: _stored, ...storedContent } = stored;
+	const { digest: recomputedDigest, ...rebuiltContent } = rebuilt;
+	const differences = jsonDifferences(storedContent, rebuiltContent);
+	return {
+		// A stored row whose content no longer hashes to its digest differs from the rebuilt content.
+		digestMatches: recomputedDigest === stored.digest && differences.length === 0,
+		digest: stored.digest,
+		recomputedDigest,
+		maxRelativeDifference: differences.reduce((max, difference) => Math.max(max, relativeDifference(difference)), 0),
+		differences
+	};
+}
+
+/** The version's reproduction, or 404 when the caller may not see it. */
+export async function reproduceVersion(
+	em: EntityManager,
+	actor: Actor | null,
+	slug: string,
+	number: number
+): Promise<Reproduction> {
+	const { version } = await findVersion(em, actor, slug, number);
+	const stored = version.content as unknown as Stored;
+	const revision = await em.findOne(CalibratorRevision, {
+		calibratorSet: { slug: stored.calibrator_set.slug },
+		number: stored.calibrator_set.revision
+	});
+	if (!revision)
+		throw new RegistryError(
+			409,
+			'calibrators-missing',
+			`${stored.calibrator_set.slug} has no revision ${stored.calibrator_set.revision}.`
+		);
+	try {
+		return reproduceContent(stored, revisionRows(revision), await fittedOffsetPrior(em, version.proposalId, stored));
+	} catch (error) {
+		if (!(error instanceof CalibrationInputError)) throw error;
+		throw new RegistryError(
+			422,
+			'not-reproducible',
+			'The engine refused the frozen spec on the frozen calibrators.',
+			error.issues.map((issue) => ({ path: issue.field, message: issue.message }))
+		);
+	}
+}
+
+async function fittedOffsetPrior(em: EntityManager, proposalId: string | null | undefined, stored: Stored) {
+	if (stored.fit.parallax_offset?.mode !== 'fitted' || !proposalId) return null;
+	const proposal = await em.findOne(Proposal, proposalId, { fields: ['fit'] });
+	const job = proposal ? await em.findOne(AnalysisJob, proposal.fit.id, { fields: ['input'] }) : null;
+	return (job?.input as FitInput | undefined)?.request.parallax_offset?.value ?? null;
+}
