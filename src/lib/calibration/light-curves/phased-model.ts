@@ -52,7 +52,7 @@ export function modelCurve(
 	}));
 }
 
-export interface PhasedPoint {
+export interface FoldedPoint {
 	phase: number;
 	mag: number;
 	err: number;
@@ -62,7 +62,7 @@ export interface PhasedPoint {
 export function phasePoints(
 	series: LightCurveSeries,
 	model: Pick<PhasedModel, 'periodDays' | 'epochOfMaximum'>
-): PhasedPoint[] {
+): FoldedPoint[] {
 	const offset = series.timeOffsetDays + (series.timeReference === 'MJD' ? 2400000.5 : 0);
 	return series.points.map(([time, mag, err]) => {
 		const cycles = (time + offset - model.epochOfMaximum) / model.periodDays;

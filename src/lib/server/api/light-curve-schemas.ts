@@ -1,2 +1,227 @@
 /** Request and response schemas of light-curve uploads and analyses, registered for the OpenAPI document. */
-export {};
+import { z } from 'zod';
+import { POPULATION_IDS, SINGLE_BAND_IDS, TIME_REFERENCES } from '../../calibration/index';
+import { registerApiSchema } from './schema-registry';
+
+export const ANALYSE_OPERATION = 'POST /api/v1/light-curves/analyse';
+export const UPLOAD_OPERATION = 'POST /api/v1/light-curves/uploads';
+export const UPLOAD_LIST_OPERATION = 'GET /api/v1/light-curves/uploads';
+export const UPLOAD_READ_OPERATION = 'GET /api/v1/light-curves/uploads/{id}';
+
+/** Size caps of one analyse request (the JSON body limit applies too: 413 beyond it). */
+export const ANALYSE_LIMITS = {
+	maxSeries: 500,
+	maxPointsPerSeries: 100_000,
+	maxPoints: 500_000
+} as const;
+
+const STAR_ID = /^[\p{L}\p{N}][\p{L}\p{N} ._+\-/]{0,99}$/u;
+
+const finite = z.number().refine(Number.isFinite, 'must be a finite number');
+
+export const LightCurvePointSchema = z.tuple([
+	finite,
+	finite,
+	z.number().positive('must be > 0 (the error sets the weight)')
+]);
+
+export const LightCurveSeriesSchema = z
+	.object({
+		id: z.string().regex(STAR_ID, 'a star id is 1–100 letters, digits, spaces and . _ + - /'),
+		band: z.enum(SINGLE_BAND_IDS).nullable().optional(),
+		time_reference: z.enum(TIME_REFERENCES),
+		time_offset_days: finite.default(0),
+		population: z.enum(POPULATION_IDS).default('classical_fundamental'),
+		points: z.array(LightCurvePointSchema).min(10, 'needs at least 10 points').max(ANALYSE_LIMITS.maxPointsPerSeries)
+	})
+	.strict();
+
+export const AnalyseRequestSchema = registerApiSchema(
+	z
+		.object({
+			series: z.array(LightCurveSeriesSchema).min(1).max(ANALYSE_LIMITS.maxSeries),
+			min_period_days: z.number().positive().optional(),
+			max_period_days: z.number().positive().optional()
+		})
+		.strict()
+		.superRefine((body, ctx) => {
+			if (
+				body.min_period_days !== undefined &&
+				body.max_period_days !== undefined &&
+				body.max_period_days <= body.min_period_days
+			) {
+				ctx.addIssue({ code: 'custom', path: ['max_period_days'], message: 'must be greater than min_period_days' });
+			}
+			const total = body.series.reduce((sum, series) => sum + series.points.length, 0);
+			if (total > ANALYSE_LIMITS.maxPoints) {
+				ctx.addIssue({
+					code: 'custom',
+					path: ['series'],
+					message: `${total} points in all; at most ${ANALYSE_LIMITS.maxPoints} per request`
+				});
+			}
+		}),
+	{
+		id: 'LightCurveAnalyseRequest',
+		description:
+			'Light curves to analyse: each series is one star in one band, points [time, mag, err] with time in `time_reference` minus `time_offset_days` (e.g. HJD − 2450000).',
+		requestFor: [ANALYSE_OPERATION]
+	}
+);
+
+export type AnalyseRequest = z.infer<typeof AnalyseRequestSchema>;
+
+const WarningSchema = z.object({
+	code: z.string(),
+	message: z.string(),
+	field: z.string().nullable(),
+	details: z.record(z.string(), z.union([z.number(), z.string(), z.null()]))
+});
+
+const AliasSchema = z.object({
+	kind: z.enum(['one_day', 'one_year']),
+	side: z.number().int(),
+	frequency_per_day: z.number(),
+	period_days: z.number(),
+	power_ratio: z.number()
+});
+
+const resultFields = {
+	id: z.string(),
+	band: z.string().nullable(),
+	population: z.string(),
+	time_frame: z.enum(['HJD', 'BJD_TDB', 'JD']),
+	n_points: z.number().int(),
+	baseline_days: z.number(),
+	period_days: z.number(),
+	period_err_days: z.number(),
+	frequency_per_day: z.number(),
+	peak_power: z.number(),
+	false_alarm_probability: z.number(),
+	periodogram_method: z.enum(['exact', 'fast']),
+	amplitude: z.number(),
+	epoch_of_maximum: z.number().describe('Full days on time_frame (MJD input is reported as JD).'),
+	mean_mag_intensity: z.number(),
+	mean_mag_intensity_err: z.number(),
+	mean_mag_magnitude: z.number(),
+	mean_mag_magnitude_err: z.number(),
+	fourier_order: z.number().int(),
+	fourier_coefficients: z
+		.array(z.number())
+		.describe(
+			'[A0, a1, b1, a2, b2, …]: m(φ) = A0 + Σ a_k cos 2πkφ + b_k sin 2πkφ, φ = (t − epoch_of_maximum)/period mod 1.'
+		),
+	fourier_shape: z.object({
+		amplitudes: z.array(z.number()),
+		phases: z.array(z.number()),
+		r21: z.number().nullable(),
+		r31: z.number().nullable(),
+		phi21: z.number().nullable(),
+		phi31: z.number().nullable()
+	}),
+	reduced_chi_square: z.number().nullable(),
+	residual_rms: z.number(),
+	phase_coverage: z.object({
+		covered_fraction: z.number(),
+		largest_gap: z.number(),
+		largest_gap_start: z.number(),
+		bins: z.number().int()
+	}),
+	aliases: z.array(AliasSchema),
+	warnings: z.array(WarningSchema)
+};
+
+export const LightCurveResultSchema = registerApiSchema(z.object(resultFields), {
+	id: 'LightCurveResult',
+	description: 'The analysis of one series: period, uncertainty, significance, Fourier model, means and warnings.'
+});
+
+export const AnalyseResponseSchema = registerApiSchema(
+	z.object({ engine_version: z.string(), results: z.array(LightCurveResultSchema) }),
+	{
+		id: 'LightCurveAnalyseResponse',
+		description: 'One result per series, in request order.',
+		responseFor: [ANALYSE_OPERATION]
+	}
+);
+
+export const LightCurveJobSchema = registerApiSchema(
+	z.object({
+		id: z.string(),
+		kind: z.string(),
+		state: z.enum(['queued', 'running', 'succeeded', 'failed']),
+		progress: z.number().min(0).max(1),
+		stage: z.string(),
+		created_at: z.string().nullable(),
+		started_at: z.string().nullable(),
+		finished_at: z.string().nullable(),
+		result: z.record(z.string(), z.unknown()).nullable(),
+		error: z.record(z.string(), z.unknown()).nullable()
+	}),
+	{
+		id: 'LightCurveJob',
+		description:
+			'A background light-curve analysis; poll its Location (GET /api/v1/jobs/{id}) until it succeeds or fails.'
+	}
+);
+
+export const StoredLightCurveResultSchema = registerApiSchema(
+	z.object({ ...resultFields, analysis_id: z.string(), engine_version: z.string(), created_at: z.string().nullable() }),
+	{ id: 'StoredLightCurveResult', description: 'A stored analysis of one star in one band of an upload.' }
+);
+
+export const LightCurveUploadSchema = registerApiSchema(
+	z.object({
+		id: z.string(),
+		uploaded_by: z.object({ id: z.string(), display_name: z.string().nullable() }),
+		created_at: z.string().nullable(),
+		source: z.object({ sha256: z.string(), name: z.string(), media_type: z.string(), bytes: z.number().int() }),
+		time_reference: z.enum(TIME_REFERENCES),
+		time_offset_days: z.number(),
+		population: z.string(),
+		min_period_days: z.number().nullable(),
+		max_period_days: z.number().nullable(),
+		star_count: z.number().int(),
+		series: z.array(z.object({ star: z.string(), band: z.string().nullable(), points: z.number().int() })),
+		job: LightCurveJobSchema.nullable(),
+		results: z.array(StoredLightCurveResultSchema)
+	}),
+	{
+		id: 'LightCurveUpload',
+		description:
+			'An uploaded light-curve file, its analysis job and, once the job has finished, one result per star and band.',
+		responseFor: [UPLOAD_OPERATION, UPLOAD_READ_OPERATION]
+	}
+);
+
+export const LightCurveUploadListSchema = registerApiSchema(
+	z.object({
+		uploads: z.array(
+			z.object({
+				id: z.string(),
+				created_at: z.string().nullable(),
+				source_name: z.string(),
+				star_count: z.number().int(),
+				series_count: z.number().int(),
+				state: z.string(),
+				progress: z.number().min(0).max(1)
+			})
+		)
+	}),
+	{
+		id: 'LightCurveUploadList',
+		description: 'The caller’s light-curve uploads, newest first.',
+		responseFor: [UPLOAD_LIST_OPERATION]
+	}
+);
+
+export const UploadQuerySchema = z.object({
+	time_reference: z.string().nullable(),
+	time_offset_days: z.string().nullable(),
+	star: z.string().max(100).nullable(),
+	band: z.string().max(20).nullable(),
+	name: z.string().max(200).nullable(),
+	population: z.enum(POPULATION_IDS).default('classical_fundamental'),
+	min_period_days: z.coerce.number().positive().optional(),
+	max_period_days: z.coerce.number().positive().optional()
+});
