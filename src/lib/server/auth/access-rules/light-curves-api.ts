@@ -33,5 +33,27 @@ export const LIGHT_CURVE_API_RULES: readonly AccessRule[] = [
 		audience: signedIn,
 		tokenScope: 'any',
 		summary: 'one light-curve upload with its per-star results'
+	},
+
+	// Pages: my uploads and the upload form, one upload's batch table, one star's plots.
+	{ route: '/light-curves', method: 'GET', audience: signedIn, summary: 'my light-curve uploads and the upload form' },
+	{
+		route: '/light-curves',
+		method: 'POST',
+		action: 'default',
+		audience: signedIn,
+		summary: 'upload a light-curve file'
+	},
+	{
+		route: '/light-curves/[id]',
+		method: 'GET',
+		audience: signedIn,
+		summary: 'one upload: progress and per-star results'
+	},
+	{
+		route: '/light-curves/[id]/[star]',
+		method: 'GET',
+		audience: signedIn,
+		summary: 'one star: periodogram and phased curve'
 	}
 ];
