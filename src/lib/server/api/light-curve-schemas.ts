@@ -1,7 +1,7 @@
 /** Request and response schemas of light-curve uploads and analyses, registered for the OpenAPI document. */
 import { z } from 'zod';
 import { POPULATION_IDS, SINGLE_BAND_IDS, TIME_REFERENCES } from '../../calibration/index';
-import { registerApiSchema } from './schema-registry';
+import { describeOperation, registerApiSchema } from './schema-registry';
 
 export const ANALYSE_OPERATION = 'POST /api/v1/light-curves/analyse';
 export const UPLOAD_OPERATION = 'POST /api/v1/light-curves/uploads';
@@ -224,4 +224,63 @@ export const UploadQuerySchema = z.object({
 	population: z.enum(POPULATION_IDS).default('classical_fundamental'),
 	min_period_days: z.coerce.number().positive().optional(),
 	max_period_days: z.coerce.number().positive().optional()
+});
+
+const problemResponse = (description: string) => ({
+	description,
+	schema: 'Problem',
+	mediaTypes: ['application/problem+json']
+});
+
+describeOperation(ANALYSE_OPERATION, {
+	description:
+		'Period search (generalised Lomb–Scargle), Fourier model with its order chosen by BIC, refined period and error, amplitude, epoch of maximum, intensity and magnitude means, aliases and warnings for each series. Up to 10 series and 20 000 points in all answer 200; larger batches (up to 500 series and 500 000 points) answer 202 with a job at its Location. HJD, BJD_TDB and JD/MJD bands of one star are refused together, never mixed.',
+	responses: {
+		'200': { description: 'Every series analysed, in request order.', schema: 'LightCurveAnalyseResponse' },
+		'202': {
+			description: 'Queued; poll the Location (GET /api/v1/jobs/{id}) for progress per series and the results.',
+			schema: 'LightCurveJob'
+		},
+		'413': problemResponse('The body is larger than the JSON limit.'),
+		'415': problemResponse('The body is not application/json.'),
+		'422': problemResponse('A series is unusable; errors[].path names it, e.g. series[3].points[17][2].')
+	}
+});
+
+const query = (
+	name: string,
+	description: string,
+	schema: Record<string, unknown> = { type: 'string' },
+	required = false
+) => ({
+	name,
+	in: 'query' as const,
+	required,
+	description,
+	schema
+});
+
+describeOperation(UPLOAD_OPERATION, {
+	description:
+		'The body is the raw file, text/csv or text/tab-separated-values (UTF-8), with columns time, magnitude, error and optionally band and star. The file is stored unchanged by its sha256 and analysed by a background job; a refused file stores nothing and lists every problem by line, column, value and reason.',
+	parameters: [
+		query('time_reference', 'Time frame of the time column.', { type: 'string', enum: [...TIME_REFERENCES] }, true),
+		query('time_offset_days', 'Added to every time, e.g. 2450000 for “HJD − 2450000”.', { type: 'number' }),
+		query('mapping', 'JSON object: source column → time, magnitude, error, band, star, or null to ignore the column.'),
+		query('star', 'Star id for a file without a star column.'),
+		query('band', 'Band for a file without a band column.', { type: 'string', enum: [...SINGLE_BAND_IDS] }),
+		query('name', 'The file name to show.'),
+		query('population', 'Population the stars are taken to belong to (sets the warnings).', {
+			type: 'string',
+			enum: [...POPULATION_IDS]
+		}),
+		query('min_period_days', 'Shortest period searched (default 0.2 d).', { type: 'number' }),
+		query('max_period_days', 'Longest period searched (default the baseline).', { type: 'number' })
+	],
+	responses: {
+		'201': { description: 'Stored; the analysis job is queued.', schema: 'LightCurveUpload' },
+		'413': problemResponse('The file is larger than the upload limit.'),
+		'415': problemResponse('The body is neither text/csv nor text/tab-separated-values.'),
+		'422': problemResponse('The file or a query parameter is refused; `issues` lists line, column, value and reason.')
+	}
 });

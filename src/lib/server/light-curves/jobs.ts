@@ -15,7 +15,7 @@ import {
 	type BatchSeries
 } from './analysis';
 import { seriesOfUpload } from './uploads';
-import { analysisToWire } from './wire';
+import { analysisToWire, coverageToWire } from './wire';
 
 /**
  * Light-curve analyses as jobs. A small analyse request runs inside the request; a large one, and
@@ -176,7 +176,7 @@ function resultRow(uploadId: string, position: number, { series, analysis, model
 		reducedChiSquare: finiteOrNull(analysis.reducedChiSquare),
 		residualRms: analysis.residualRms,
 		periodogramMethod: analysis.periodogramMethod,
-		phaseCoverage: analysis.phaseCoverage as unknown as Record<string, number>,
+		phaseCoverage: coverageToWire(analysis.phaseCoverage),
 		aliases: analysisToWire(analysis, model, series.population).aliases,
 		warnings: analysisToWire(analysis, model, series.population).warnings,
 		periodogram,
