@@ -44,14 +44,22 @@ export const AnalyseRequestSchema = registerApiSchema(
 			max_period_days: z.number().positive().optional()
 		})
 		.strict()
-		.superRefine((body, ctx) => {
-			if (
-				body.min_period_days !== undefined &&
-				body.max_period_days !== undefined &&
-				body.max_period_days <= body.min_period_days
-			) {
-				ctx.addIssue({ code: 'custom', path: ['max_period_days'], message: 'must be greater than min_period_days' });
+		// Checked even when a series is bad, so one answer names every problem.
+		.refine(
+			(body) =>
+				body.min_period_days === undefined ||
+				body.max_period_days === undefined ||
+				body.max_period_days > body.min_period_days,
+			{
+				path: ['max_period_days'],
+				message: 'must be greater than min_period_days',
+				when: ({ value }) => {
+					const range = value as { min_period_days?: unknown; max_period_days?: unknown } | null;
+					return typeof range?.min_period_days === 'number' && typeof range?.max_period_days === 'number';
+				}
 			}
+		)
+		.superRefine((body, ctx) => {
 			const total = body.series.reduce((sum, series) => sum + series.points.length, 0);
 			if (total > ANALYSE_LIMITS.maxPoints) {
 				ctx.addIssue({
