@@ -107,6 +107,16 @@ describe('light-curve upload table', () => {
 		expect(parsed.issues).toContainEqual(issue);
 	});
 
+	test('a star id with a slash is refused: it names a page', () => {
+		const text = withCell(inventedFile(), 2, 0, 'KCS/001');
+		expect(parseLightCurveUpload(utf8(text), csv).issues).toContainEqual({
+			line: 2,
+			column: 'star',
+			value: 'KCS/001',
+			reason: expect.stringContaining('a star id is')
+		});
+	});
+
 	test('a missing column is named', () => {
 		const text = inventedFile().replace('star,band,time,magnitude,error', 'star,band,time,magnitude,sigma');
 		const parsed = parseLightCurveUpload(utf8(text), csv);

@@ -72,7 +72,9 @@ export interface ParsedLightCurveUpload {
 const MAX_REPORTED_ISSUES = 200;
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 const NOT_A_NUMBER = new Set(['nan', '-nan', '+nan', 'inf', '-inf', '+inf', 'infinity', '-infinity']);
-const STAR_ID = /^[\p{L}\p{N}][\p{L}\p{N} ._+\-/]{0,99}$/u;
+/** Star ids become a page path segment, so no slash; spaces, dots, plus and dashes as catalogues use them. */
+export const STAR_ID_PATTERN = /^[\p{L}\p{N}][\p{L}\p{N} ._+\-]{0,99}$/u;
+export const STAR_ID_RULE = 'a star id is 1–100 letters, digits, spaces and . _ + -, starting with a letter or digit';
 
 /** Strict UTF-8 decoding; the issue names the line of the first byte that is not UTF-8. */
 function decode(bytes: Uint8Array): { text: string } | { issue: TableIssue } {
@@ -191,12 +193,12 @@ export function parseLightCurveUpload(
 				value: null,
 				reason: 'the file has no star column; name the star (query parameter star) or add a star column'
 			});
-		} else if (!STAR_ID.test(fixedStar)) {
+		} else if (!STAR_ID_PATTERN.test(fixedStar)) {
 			report({
 				line: null,
 				column: 'star',
 				value: fixedStar,
-				reason: 'a star id is 1–100 letters, digits, spaces and . _ + - /, starting with a letter or digit'
+				reason: STAR_ID_RULE
 			});
 		}
 	}
@@ -249,12 +251,7 @@ export function parseLightCurveUpload(
 			star = cell(starColumn);
 			if (looksLikeFormula(star))
 				bad(starColumn, star, 'starts like a spreadsheet formula (=, +, -, @); Candlebook does not store formulas');
-			else if (!STAR_ID.test(star))
-				bad(
-					starColumn,
-					star,
-					'a star id is 1–100 letters, digits, spaces and . _ + - /, starting with a letter or digit'
-				);
+			else if (!STAR_ID_PATTERN.test(star)) bad(starColumn, star, STAR_ID_RULE);
 		}
 		let band = defaultBand;
 		if (bandColumn) {

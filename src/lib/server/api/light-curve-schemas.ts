@@ -1,6 +1,12 @@
 /** Request and response schemas of light-curve uploads and analyses, registered for the OpenAPI document. */
 import { z } from 'zod';
-import { POPULATION_IDS, SINGLE_BAND_IDS, TIME_REFERENCES } from '../../calibration/index';
+import {
+	POPULATION_IDS,
+	SINGLE_BAND_IDS,
+	STAR_ID_PATTERN,
+	STAR_ID_RULE,
+	TIME_REFERENCES
+} from '../../calibration/index';
 import { describeOperation, registerApiSchema } from './schema-registry';
 
 export const ANALYSE_OPERATION = 'POST /api/v1/light-curves/analyse';
@@ -15,8 +21,6 @@ export const ANALYSE_LIMITS = {
 	maxPoints: 500_000
 } as const;
 
-const STAR_ID = /^[\p{L}\p{N}][\p{L}\p{N} ._+\-/]{0,99}$/u;
-
 const finite = z.number().refine(Number.isFinite, 'must be a finite number');
 
 export const LightCurvePointSchema = z.tuple([
@@ -27,7 +31,7 @@ export const LightCurvePointSchema = z.tuple([
 
 export const LightCurveSeriesSchema = z
 	.object({
-		id: z.string().regex(STAR_ID, 'a star id is 1–100 letters, digits, spaces and . _ + - /'),
+		id: z.string().regex(STAR_ID_PATTERN, STAR_ID_RULE),
 		band: z.enum(SINGLE_BAND_IDS).nullable().optional(),
 		time_reference: z.enum(TIME_REFERENCES),
 		time_offset_days: finite.default(0),
