@@ -11,3 +11,5 @@ export * from './periodogram';
 export * from './phase-coverage';
 export * from './series';
 export * from './time';
+export * from './phased-model';
+export * from './upload-table';

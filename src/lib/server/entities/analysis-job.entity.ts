@@ -1,14 +1,14 @@
 import { defineEntity, type InferEntity } from '@mikro-orm/core';
 import { User } from './user.entity';
 
-export const ANALYSIS_KINDS = ['fit'] as const;
+export const ANALYSIS_KINDS = ['fit', 'light_curves'] as const;
 export type AnalysisKind = (typeof ANALYSIS_KINDS)[number];
 
 export const ANALYSIS_STATES = ['queued', 'running', 'succeeded', 'failed'] as const;
 export type AnalysisState = (typeof ANALYSIS_STATES)[number];
 
 /**
- * One analysis run (a fit, for now) with its input, progress and result. Small runs finish inside the
+ * One analysis run (a fit, or a batch of light curves) with its input, progress and result. Small runs finish inside the
  * request; large ones are queued on pg-boss and a worker updates the row as it goes.
  */
 export const AnalysisJob = defineEntity({

@@ -1,6 +1,8 @@
 import { ApiToken } from './api-token.entity';
 import { AuditEvent } from './audit-event.entity';
 import { GroupMembership } from './group-membership.entity';
+import { LightCurveResult } from './light-curve-result.entity';
+import { LightCurveUpload } from './light-curve-upload.entity';
 import { Group } from './group.entity';
 import { OneTimeLink } from './one-time-link.entity';
 import { REGISTRY_ENTITIES } from './registry-entities';
@@ -16,7 +18,9 @@ export const ENTITIES = [
 	ApiToken,
 	OneTimeLink,
 	AuditEvent,
-	...REGISTRY_ENTITIES
+	...REGISTRY_ENTITIES,
+	LightCurveUpload,
+	LightCurveResult
 ];
 
 export { ApiToken, AuditEvent, Group, GroupMembership, OneTimeLink, Session, User };
@@ -40,3 +44,5 @@ export { RelationVersion } from './relation-version.entity';
 export { RelationWatch } from './relation-watch.entity';
 export { Setting } from './setting.entity';
 export { VersionLifecycle } from './version-lifecycle.entity';
+export { LightCurveResult } from './light-curve-result.entity';
+export { LightCurveUpload } from './light-curve-upload.entity';

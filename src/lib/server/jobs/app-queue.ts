@@ -2,7 +2,9 @@ import type PgBoss from 'pg-boss';
 import { getConfig } from '../config';
 import { getOrm } from '../db';
 import type { FitQueue } from '../registry/fits';
-import { fitQueueOf, startFitWorker, startJobQueue } from './queue';
+import type { LightCurveQueue } from '../light-curves/jobs';
+import { getObjectStorage } from '../storage/app-storage';
+import { fitQueueOf, lightCurveQueueOf, startFitWorker, startJobQueue, startLightCurveWorker } from './queue';
 
 let boss: Promise<PgBoss> | undefined;
 
@@ -14,7 +16,10 @@ export function getAppJobQueue(): Promise<PgBoss> {
 	boss ??= (async () => {
 		const config = getConfig();
 		const started = await startJobQueue(config.DATABASE_URL);
-		if (config.CANDLEBOOK_IN_PROCESS_WORKER === 'true') await startFitWorker(started, await getOrm());
+		if (config.CANDLEBOOK_IN_PROCESS_WORKER === 'true') {
+			await startFitWorker(started, await getOrm());
+			await startLightCurveWorker(started, await getOrm(), getObjectStorage);
+		}
 		return started;
 	})().catch((error: unknown) => {
 		// A database that was away must not leave the queue broken for the life of the process.
@@ -26,6 +31,10 @@ export function getAppJobQueue(): Promise<PgBoss> {
 
 export async function getAppFitQueue(): Promise<FitQueue> {
 	return fitQueueOf(await getAppJobQueue());
+}
+
+export async function getAppLightCurveQueue(): Promise<LightCurveQueue> {
+	return lightCurveQueueOf(await getAppJobQueue());
 }
 
 export async function stopAppJobQueue(): Promise<void> {

@@ -2,6 +2,8 @@ import PgBoss from 'pg-boss';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { logger } from '../logger';
 import { runFitJob, type FitQueue } from '../registry/fits';
+import { runLightCurveJob, type LightCurveQueue } from '../light-curves/jobs';
+import type { ObjectStorage } from '../storage/object-storage';
 
 /**
  * The background job queue: pg-boss in the application's own PostgreSQL (schema `pgboss`). The app
@@ -9,6 +11,7 @@ import { runFitJob, type FitQueue } from '../registry/fits';
  * on another machine) picks them up. Later analyses add their own queues here.
  */
 export const FIT_QUEUE = 'candlebook-fit';
+export const LIGHT_CURVE_QUEUE = 'candlebook-light-curves';
 
 export interface FitMessage {
 	jobId: string;
@@ -19,6 +22,7 @@ export async function startJobQueue(databaseUrl: string): Promise<PgBoss> {
 	boss.on('error', (error) => logger.error({ err: error }, 'job queue error'));
 	await boss.start();
 	await boss.createQueue(FIT_QUEUE);
+	await boss.createQueue(LIGHT_CURVE_QUEUE);
 	return boss;
 }
 
@@ -36,6 +40,33 @@ export async function startFitWorker(boss: PgBoss, orm: MikroORM, pollingInterva
 			logger.info({ jobId: job.data.jobId }, 'fit started');
 			await runFitJob(orm.em.fork(), job.data.jobId);
 			logger.info({ jobId: job.data.jobId }, 'fit finished');
+		}
+	});
+}
+
+export function lightCurveQueueOf(boss: PgBoss): LightCurveQueue {
+	return {
+		enqueueLightCurves: (jobId) =>
+			boss.send(LIGHT_CURVE_QUEUE, { jobId } satisfies FitMessage, {
+				retryLimit: 2,
+				retryDelay: 5,
+				expireInMinutes: 120
+			})
+	};
+}
+
+/** Works light-curve messages one at a time; the job row carries state, progress per series and result. */
+export async function startLightCurveWorker(
+	boss: PgBoss,
+	orm: MikroORM,
+	storage: () => ObjectStorage,
+	pollingIntervalSeconds = 2
+): Promise<string> {
+	return boss.work<FitMessage>(LIGHT_CURVE_QUEUE, { batchSize: 1, pollingIntervalSeconds }, async (jobs) => {
+		for (const job of jobs) {
+			logger.info({ jobId: job.data.jobId }, 'light-curve analysis started');
+			await runLightCurveJob(orm.em.fork(), job.data.jobId, storage);
+			logger.info({ jobId: job.data.jobId }, 'light-curve analysis finished');
 		}
 	});
 }

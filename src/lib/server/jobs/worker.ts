@@ -1,7 +1,8 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import config from '../../../../mikro-orm.config';
 import { logger } from '../logger';
-import { startFitWorker, startJobQueue } from './queue';
+import { getObjectStorage } from '../storage/app-storage';
+import { startFitWorker, startJobQueue, startLightCurveWorker } from './queue';
 
 /**
  * A stand-alone worker for background fits: `node --import tsx src/lib/server/jobs/worker.ts` with
@@ -13,6 +14,7 @@ async function main(): Promise<void> {
 	const orm = await MikroORM.init({ ...config, clientUrl: url });
 	const boss = await startJobQueue(url);
 	await startFitWorker(boss, orm);
+	await startLightCurveWorker(boss, orm, getObjectStorage);
 	logger.info('fit worker waiting for jobs');
 	const stop = async () => {
 		await boss.stop({ graceful: true, timeout: 30_000 });

@@ -137,7 +137,8 @@ export function jobToWire(job: AnalysisJobEntity) {
 		created_at: iso(job.createdAt),
 		started_at: iso(job.startedAt),
 		finished_at: iso(job.finishedAt),
-		result: result ? fitResultToWire(result) : null,
+		// Other kinds (light curves) store their result already in wire form.
+		result: result ? (job.kind === 'fit' ? fitResultToWire(result) : job.result) : null,
 		error: job.error ?? null
 	};
 }
