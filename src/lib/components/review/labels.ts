@@ -38,3 +38,13 @@ export function signed(value: number | null | undefined, digits = 3): string {
 	const text = fixed(value, digits);
 	return text.startsWith(MINUS) ? text : `+${text}`;
 }
+
+/** `path?k=v&…` for the given parameters, leaving out empty ones. */
+export function withQuery(path: string, params: Record<string, string | number | null | undefined>): string {
+	const query = new URLSearchParams();
+	for (const [key, value] of Object.entries(params)) {
+		if (value !== null && value !== undefined && value !== '') query.set(key, String(value));
+	}
+	const text = query.toString();
+	return text ? `${path}?${text}` : path;
+}

@@ -19,7 +19,12 @@ export async function lifecyclePage(em: EntityManager, actor: Actor, slug: strin
 	const reviewerOrAdmin = hasRole(actor, 'reviewer') || isAdmin(actor);
 	const deprecated = lifecycle.status === 'deprecated';
 	return {
-		relation: { slug: relation.slug, title: relation.title, group: relation.group.slug, visibility: relation.visibility },
+		relation: {
+			slug: relation.slug,
+			title: relation.title,
+			group: relation.group.slug,
+			visibility: relation.visibility
+		},
 		version: {
 			number,
 			ref: `${slug}@${number}`,

@@ -37,7 +37,16 @@ export interface ActionAvailability {
 	reason: string;
 }
 
-const PAGE_COMMANDS = ['approve', 'request_changes', 'reject', 'submit', 'withdraw', 'rebase', 'edit', 'comment'] as const;
+const PAGE_COMMANDS = [
+	'approve',
+	'request_changes',
+	'reject',
+	'submit',
+	'withdraw',
+	'rebase',
+	'edit',
+	'comment'
+] as const;
 export type PageCommand = (typeof PAGE_COMMANDS)[number];
 
 /** Periods (days) for the downstream ΔM table from `?periods=3,10,30`; at most eight, 0.1–1000 d. */
@@ -47,7 +56,8 @@ export function logPeriodsOf(value: string | null): { logPeriods: number[]; prob
 	const parts = value.split(/[\s,;]+/).filter(Boolean);
 	const days = parts.map(Number);
 	const bad = parts.find((part, i) => !Number.isFinite(days[i]) || days[i] < 0.1 || days[i] > 1000);
-	if (bad !== undefined) return { logPeriods: fallback, problem: `"${bad}" is not a period between 0.1 and 1000 days.` };
+	if (bad !== undefined)
+		return { logPeriods: fallback, problem: `"${bad}" is not a period between 0.1 and 1000 days.` };
 	if (days.length > 8) return { logPeriods: fallback, problem: 'Choose at most eight periods.' };
 	return { logPeriods: [...new Set(days)].sort((a, b) => a - b).map((d) => Math.log10(d)), problem: null };
 }
@@ -64,7 +74,9 @@ function lineOf(content: ComparableRelation): RelationLine {
 	};
 }
 
-function pointsOf(residuals: { star: string; logPeriod: number; absMag: number | null; absMagErr: number | null; used: boolean }[]) {
+function pointsOf(
+	residuals: { star: string; logPeriod: number; absMag: number | null; absMagErr: number | null; used: boolean }[]
+) {
 	const points: CalibratorPoint[] = [];
 	for (const r of residuals) {
 		if (r.absMag === null) continue;
@@ -134,7 +146,8 @@ export async function proposalPage(em: EntityManager, actor: Actor, id: string, 
 	let frozen: { ref: string; version: number; digest: string } | null = null;
 	if (proposal.versionNumber) {
 		const version = await em.findOne(RelationVersion, { relation, number: proposal.versionNumber });
-		if (version) frozen = { ref: `${relation.slug}@${version.number}`, version: version.number, digest: version.digest };
+		if (version)
+			frozen = { ref: `${relation.slug}@${version.number}`, version: version.number, digest: version.digest };
 	}
 
 	return {

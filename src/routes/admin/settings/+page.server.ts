@@ -20,7 +20,10 @@ async function lastChange(em: App.Locals['em'], key: string) {
 	const event = await em.findOne(AuditEvent, { kind: 'setting-changed', subject: key }, { orderBy: { id: 'desc' } });
 	if (!event) return null;
 	const actor = event.actorId ? await em.findOne(User, event.actorId, { fields: ['displayName'] }) : null;
-	return { at: event.occurredAt.toISOString(), by: actor?.displayName ?? (event.actorId ? 'a removed account' : 'the command line') };
+	return {
+		at: event.occurredAt.toISOString(),
+		by: actor?.displayName ?? (event.actorId ? 'a removed account' : 'the command line')
+	};
 }
 
 export const load: PageServerLoad = async ({ locals }) => {

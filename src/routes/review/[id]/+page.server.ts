@@ -60,12 +60,7 @@ function withPath(zodError: z.ZodError): z.ZodError {
 	return new z.ZodError(zodError.issues.map((issue) => ({ ...issue, path: ['comment'] })));
 }
 
-async function authorCommand(
-	event: RequestEvent,
-	action: string,
-	done: string,
-	run: (id: string) => Promise<unknown>
-) {
+async function authorCommand(event: RequestEvent, action: string, done: string, run: (id: string) => Promise<unknown>) {
 	requireUser();
 	const id = proposalId(event.params.id);
 	const failure = await pageCommand(action, {}, async () => {
@@ -81,9 +76,7 @@ export const actions: Actions = {
 		const id = proposalId(event.params.id);
 		const data = await event.request.formData();
 		const values = { body: String(data.get('body') ?? '') };
-		const parsed = z
-			.object({ body: optionalComment.min(1, 'Write something to post.') })
-			.safeParse(values);
+		const parsed = z.object({ body: optionalComment.min(1, 'Write something to post.') }).safeParse(values);
 		if (!parsed.success) return invalidForm('comment', values, parsed.error);
 		const failure = await pageCommand('comment', values, async () => {
 			await commentOnProposal(event.locals.em, actorOf(event.locals), id, parsed.data.body);
@@ -97,9 +90,7 @@ export const actions: Actions = {
 	submit: async (event) =>
 		authorCommand(event, 'submit', 'submitted', (id) => submitProposal(event.locals.em, actorOf(event.locals), id)),
 	withdraw: async (event) =>
-		authorCommand(event, 'withdraw', 'withdrawn', (id) =>
-			withdrawProposal(event.locals.em, actorOf(event.locals), id)
-		),
+		authorCommand(event, 'withdraw', 'withdrawn', (id) => withdrawProposal(event.locals.em, actorOf(event.locals), id)),
 	rebase: async (event) =>
 		authorCommand(event, 'rebase', 'rebased', (id) => rebaseProposal(event.locals.em, actorOf(event.locals), id))
 };

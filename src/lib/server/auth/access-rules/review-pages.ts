@@ -17,7 +17,13 @@ export const REVIEW_PAGE_RULES: readonly AccessRule[] = [
 		summary: 'ask the author for changes'
 	},
 	{ route: '/review/[id]', method: 'POST', action: 'reject', audience: reviewer, summary: 'reject a proposal' },
-	{ route: '/review/[id]', method: 'POST', action: 'submit', audience: signedIn, summary: 'submit for review (author)' },
+	{
+		route: '/review/[id]',
+		method: 'POST',
+		action: 'submit',
+		audience: signedIn,
+		summary: 'submit for review (author)'
+	},
 	{
 		route: '/review/[id]',
 		method: 'POST',

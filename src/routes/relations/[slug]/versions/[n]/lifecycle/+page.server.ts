@@ -28,7 +28,11 @@ export const load: PageServerLoad = async ({ locals, params }) => {
 };
 
 const DeprecateForm = z.object({
-	reason: z.string().trim().min(1, 'Say why the version should no longer be used.').max(5000, 'Keep it under 5,000 characters.'),
+	reason: z
+		.string()
+		.trim()
+		.min(1, 'Say why the version should no longer be used.')
+		.max(5000, 'Keep it under 5,000 characters.'),
 	successor: z
 		.string()
 		.regex(/^(|[1-9]\d{0,8})$/, 'Choose a version from the list.')
