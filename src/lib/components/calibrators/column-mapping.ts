@@ -17,9 +17,7 @@ export function unitChoices(field: string | null): { id: string; label: string }
 }
 
 export const ALL_UNITS: { id: string; label: string }[] = [
-	...new Map(
-		FIELD_CHOICES.flatMap(unitChoices).map((unit) => [unit.id, unit] as const)
-	).values()
+	...new Map(FIELD_CHOICES.flatMap(unitChoices).map((unit) => [unit.id, unit] as const)).values()
 ];
 
 /** A header that already is a Candlebook field name needs no mapping. */

@@ -1,6 +1,11 @@
 import { fail, redirect } from '@sveltejs/kit';
 import Papa from 'papaparse';
-import { diffCalibratorRevisions, type CanonicalRow, type ColumnMapping, type TableIssue } from '$lib/calibration/index';
+import {
+	diffCalibratorRevisions,
+	type CanonicalRow,
+	type ColumnMapping,
+	type TableIssue
+} from '$lib/calibration/index';
 import {
 	mappingFromRows,
 	rowsFromForm,
@@ -124,7 +129,8 @@ export const actions: Actions = {
 			return fail(415, { step: 'file' as const, message: 'Upload a .csv or .tsv file (UTF-8 text).' });
 		const bytes = new Uint8Array(await file.arrayBuffer());
 		const decoded = decodeUtf8(bytes);
-		if (!decoded.ok) return fail(422, { step: 'file' as const, message: 'The file was not read.', issues: [decoded.issue] });
+		if (!decoded.ok)
+			return fail(422, { step: 'file' as const, message: 'The file was not read.', issues: [decoded.issue] });
 		const { headers, sample } = glance(decoded.text);
 		if (headers.length === 0) return fail(422, { step: 'file' as const, message: 'The file has no header row.' });
 		if (headers.length > limits.maxColumns)
@@ -150,7 +156,10 @@ export const actions: Actions = {
 			const keep = form.get('keepNonPositiveParallax') === 'on';
 			let table;
 			try {
-				({ table } = checkUploadTable({ bytes, mediaType: staged.mediaType, mapping, keepNonPositiveParallax: keep }, uploadLimits()));
+				({ table } = checkUploadTable(
+					{ bytes, mediaType: staged.mediaType, mapping, keepNonPositiveParallax: keep },
+					uploadLimits()
+				));
 			} catch (cause) {
 				if (!(cause instanceof RegistryError)) throw cause;
 				const issues = (cause.extra.issues as TableIssue[] | undefined) ?? [
@@ -198,14 +207,21 @@ export const actions: Actions = {
 		}
 		const revision = await orPageError(async () => {
 			const { bytes } = await stagedText(user.id, staged);
-			return uploadRevision(locals.em, getObjectStorage(), actorOf(locals), params.slug, {
-				bytes,
-				mediaType: staged.mediaType,
-				fileName: staged.name,
-				mapping,
-				note: String(form.get('note') ?? '').slice(0, 2000),
-				keepNonPositiveParallax: form.get('keepNonPositiveParallax') === 'on'
-			}, uploadLimits());
+			return uploadRevision(
+				locals.em,
+				getObjectStorage(),
+				actorOf(locals),
+				params.slug,
+				{
+					bytes,
+					mediaType: staged.mediaType,
+					fileName: staged.name,
+					mapping,
+					note: String(form.get('note') ?? '').slice(0, 2000),
+					keepNonPositiveParallax: form.get('keepNonPositiveParallax') === 'on'
+				},
+				uploadLimits()
+			);
 		});
 		await discardStagedUpload(user.id, staged.sha256);
 		redirect(303, `/calibrator-sets/${params.slug}?uploaded=${revision.number}`);
