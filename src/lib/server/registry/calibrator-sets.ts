@@ -11,6 +11,7 @@ import {
 	type CanonicalRow,
 	type ColumnMapping,
 	type MappedColumn,
+	type ParsedTable,
 	type RevisionDiff,
 	type TableIssue,
 	type TableLimits
@@ -100,20 +101,13 @@ function refuseTable(issues: TableIssue[], total = issues.length): never {
 }
 
 /**
- * Validates an upload completely, then stores the revision row and the original file together:
- * either both exist afterwards or neither does.
+ * Every check an upload must pass, without writing anything: the upload wizard runs it to show the
+ * validation report, and `uploadRevision` runs it again before it stores. Throws 415, 413 or 422.
  */
-export async function uploadRevision(
-	em: EntityManager,
-	storage: ObjectStorage,
-	actor: Actor,
-	slug: string,
-	input: UploadInput,
+export function checkUploadTable(
+	input: Pick<UploadInput, 'bytes' | 'mediaType' | 'mapping' | 'keepNonPositiveParallax'>,
 	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
-) {
-	const set = await findCalibratorSet(em, slug);
-	if (!(await belongsTo(em, actor, set.group.id)))
-		throw forbidden(`Only members of ${set.group.slug} may upload revisions of ${set.slug}.`);
+): { mediaType: UploadMediaType; table: ParsedTable } {
 	const mediaType = input.mediaType.split(';')[0].trim().toLowerCase();
 	if (!(UPLOAD_MEDIA_TYPES as readonly string[]).includes(mediaType)) {
 		throw new RegistryError(415, 'unsupported-media-type', 'Send the table as text/csv or text/tab-separated-values.');
@@ -141,6 +135,26 @@ export async function uploadRevision(
 	}
 	const formulas = formulaCellIssues(table.columns, table.rows);
 	if (formulas.length > 0) refuseTable(formulas);
+
+	return { mediaType: mediaType as UploadMediaType, table };
+}
+
+/**
+ * Validates an upload completely, then stores the revision row and the original file together:
+ * either both exist afterwards or neither does.
+ */
+export async function uploadRevision(
+	em: EntityManager,
+	storage: ObjectStorage,
+	actor: Actor,
+	slug: string,
+	input: UploadInput,
+	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
+) {
+	const set = await findCalibratorSet(em, slug);
+	if (!(await belongsTo(em, actor, set.group.id)))
+		throw forbidden(`Only members of ${set.group.slug} may upload revisions of ${set.slug}.`);
+	const { mediaType, table } = checkUploadTable(input, limits);
 
 	const address = contentAddress(SOURCE_PREFIX, input.bytes);
 	const { key: sourceKey, sha256: sourceSha } = address;
