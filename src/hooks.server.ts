@@ -6,6 +6,7 @@ import { getConfig } from '$lib/server/config';
 import { closeOrm, getOrm } from '$lib/server/db';
 import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
+import { handleTheme } from '$lib/server/theme';
 
 export const init: ServerInit = async () => {
 	const config = getConfig();
@@ -57,7 +58,7 @@ const handleApiProblems: Handle = async ({ event, resolve }) => {
 	return problem(response.status, body.message, body.errors ? { errors: body.errors } : {}, headers);
 };
 
-export const handle = sequence(handleRequestLog, handleDb, handleApiProblems, handleAuth, handleGuard);
+export const handle = sequence(handleRequestLog, handleDb, handleApiProblems, handleAuth, handleGuard, handleTheme);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message };
