@@ -1,4 +1,8 @@
-/** Number and date formatting shared by the screens (client-safe). */
+/** Client-safe formatting helpers. */
+export function formatDateTime(iso: string | null): string {
+	if (!iso) return '—';
+	return new Date(iso).toISOString().replace('T', ' ').slice(0, 16) + ' UTC';
+}
 
 /** A value with a fixed number of decimals and a true minus sign. */
 export function fixed(value: number | null | undefined, digits = 3): string {

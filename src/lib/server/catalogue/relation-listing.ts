@@ -113,25 +113,23 @@ export async function listCatalogue(
 	const rows = (await em.getConnection().execute(sql, params)) as Row[];
 	const page = rows.slice(0, filter.limit);
 	return {
-		items: page.map(
-			(row): CatalogueItem => ({
-				slug: row.slug,
-				title: row.title,
-				band: row.band,
-				population: row.population,
-				magnitude_system: row.magnitude_system,
-				anchor_type: row.anchor_type,
-				group: row.group_slug,
-				visibility: row.visibility,
-				state: row.state,
-				current:
-					row.current_number === null
-						? null
-						: { version: row.current_number, ref: `${row.slug}@${row.current_number}`, digest: row.current_digest! },
-				version_count: Number(row.version_count),
-				updated_at: new Date(row.updated_at).toISOString()
-			})
-		),
+		items: page.map((row): CatalogueItem => ({
+			slug: row.slug,
+			title: row.title,
+			band: row.band,
+			population: row.population,
+			magnitude_system: row.magnitude_system,
+			anchor_type: row.anchor_type,
+			group: row.group_slug,
+			visibility: row.visibility,
+			state: row.state,
+			current:
+				row.current_number === null
+					? null
+					: { version: row.current_number, ref: `${row.slug}@${row.current_number}`, digest: row.current_digest! },
+			version_count: Number(row.version_count),
+			updated_at: new Date(row.updated_at).toISOString()
+		})),
 		next_cursor: rows.length > filter.limit ? encodeCursor(offset + filter.limit) : null
 	};
 }

@@ -115,14 +115,15 @@ export async function loadRelationView(
 			diagramPoints(em, content).catch(() => null),
 			citationFor(em, slug, relation.title, content, version.proposalId ?? null, origin)
 		]);
-		const manager = actor ? isAdmin(actor) || (await standingInGroup(em, actor, relation.group.id)) === 'manager' : false;
+		const manager = actor
+			? isAdmin(actor) || (await standingInGroup(em, actor, relation.group.id)) === 'manager'
+			: false;
 		selected = {
 			content,
 			entry: timeline.find((entry) => entry.version === chosenNumber)!,
 			points,
 			citation,
-			mayDeprecate:
-				!!actor && (hasRole(actor, 'reviewer') || isAdmin(actor)) && lifecycle.status !== 'deprecated',
+			mayDeprecate: !!actor && (hasRole(actor, 'reviewer') || isAdmin(actor)) && lifecycle.status !== 'deprecated',
 			mayRelease: manager && isEmbargoed(lifecycle)
 		};
 	} else if (requested !== null) {

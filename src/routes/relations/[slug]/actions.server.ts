@@ -25,5 +25,9 @@ export const reproduceAction = async (event: RequestEvent) =>
 			versionParam(raw)
 		);
 		const content = { ...(version.content as unknown as FrozenContent), digest: version.digest };
-		return { action: 'reproduce', version: content.version, result: await reproduceFrozenVersion(event.locals.em, content) };
+		return {
+			action: 'reproduce',
+			version: content.version,
+			result: await reproduceFrozenVersion(event.locals.em, content)
+		};
 	});
