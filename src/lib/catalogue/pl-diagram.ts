@@ -22,6 +22,7 @@ export interface DiagramRelation {
 	band: string;
 }
 
+/** Each mark's group carries one of these as aria-description; each point its star as aria-label. */
 export const USED_LABEL = 'used calibrators';
 export const REJECTED_LABEL = 'rejected calibrators';
 const USED = 'var(--cb-tide)';
@@ -41,6 +42,8 @@ function xDomain(stars: DiagramStar[], relation: DiagramRelation): [number, numb
 
 const title = (star: DiagramStar) =>
 	`${star.star}\nlog P = ${star.logPeriod.toFixed(3)}\nM = ${star.absMag.toFixed(3)} ± ${star.absMagErr.toFixed(3)}\n${star.used ? 'used' : 'rejected'}`;
+
+const pointLabel = (star: DiagramStar) => `${star.star}, ${star.used ? 'used' : 'rejected'}`;
 
 export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation, width = 640): Plot.PlotOptions {
 	const used = stars.filter((star) => star.used);
@@ -63,7 +66,7 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				x2: 'x2',
 				fill: USED,
 				fillOpacity: 0.08,
-				ariaLabel: 'validity range'
+				ariaDescription: 'validity range'
 			}),
 			Plot.line(segment(x0, min), {
 				x: 'logPeriod',
@@ -85,16 +88,24 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				y2: (star: DiagramStar) => star.absMag + star.absMagErr,
 				stroke: USED,
 				strokeOpacity: 0.6,
-				ariaLabel: 'error bars'
+				ariaDescription: 'error bars'
 			}),
 			Plot.line(segment(min, max), {
 				x: 'logPeriod',
 				y: 'mag',
 				stroke: LINE,
 				strokeWidth: 2,
-				ariaLabel: 'fitted relation'
+				ariaDescription: 'fitted relation'
 			}),
-			Plot.dot(used, { x: 'logPeriod', y: 'absMag', r: 3, fill: USED, title, ariaLabel: USED_LABEL }),
+			Plot.dot(used, {
+				x: 'logPeriod',
+				y: 'absMag',
+				r: 3,
+				fill: USED,
+				title,
+				ariaLabel: pointLabel,
+				ariaDescription: USED_LABEL
+			}),
 			Plot.dot(rejected, {
 				x: 'logPeriod',
 				y: 'absMag',
@@ -103,7 +114,8 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				stroke: REJECTED,
 				strokeWidth: 2,
 				title,
-				ariaLabel: REJECTED_LABEL
+				ariaLabel: pointLabel,
+				ariaDescription: REJECTED_LABEL
 			})
 		]
 	};
@@ -127,7 +139,15 @@ export function residualOptions(stars: DiagramStar[], relation: DiagramRelation,
 			Plot.ruleY([0], { stroke: LINE }),
 			Plot.dot(
 				stars.filter((star) => star.used),
-				{ x: 'logPeriod', y: 'residual', r: 2.5, fill: USED, title, ariaLabel: `${USED_LABEL} residuals` }
+				{
+					x: 'logPeriod',
+					y: 'residual',
+					r: 2.5,
+					fill: USED,
+					title,
+					ariaLabel: pointLabel,
+					ariaDescription: `${USED_LABEL} residuals`
+				}
 			),
 			Plot.dot(
 				stars.filter((star) => !star.used),
@@ -139,7 +159,8 @@ export function residualOptions(stars: DiagramStar[], relation: DiagramRelation,
 					stroke: REJECTED,
 					strokeWidth: 2,
 					title,
-					ariaLabel: `${REJECTED_LABEL} residuals`
+					ariaLabel: pointLabel,
+					ariaDescription: `${REJECTED_LABEL} residuals`
 				}
 			)
 		]
