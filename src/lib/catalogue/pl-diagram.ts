@@ -22,9 +22,9 @@ export interface DiagramRelation {
 	band: string;
 }
 
-/** Each mark's group carries one of these as aria-description; each point its star as aria-label. */
-export const USED_LABEL = 'used calibrators';
-export const REJECTED_LABEL = 'rejected calibrators';
+/** Class names of the marks' groups, so a reader of the SVG (or a test) can tell the marks apart. */
+export const USED_CLASS = 'cb-used-calibrators';
+export const REJECTED_CLASS = 'cb-rejected-calibrators';
 const USED = 'var(--cb-tide)';
 const REJECTED = 'var(--cb-rust)';
 const LINE = 'var(--cb-ember)';
@@ -42,8 +42,6 @@ function xDomain(stars: DiagramStar[], relation: DiagramRelation): [number, numb
 
 const title = (star: DiagramStar) =>
 	`${star.star}\nlog P = ${star.logPeriod.toFixed(3)}\nM = ${star.absMag.toFixed(3)} ± ${star.absMagErr.toFixed(3)}\n${star.used ? 'used' : 'rejected'}`;
-
-const pointLabel = (star: DiagramStar) => `${star.star}, ${star.used ? 'used' : 'rejected'}`;
 
 export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation, width = 640): Plot.PlotOptions {
 	const used = stars.filter((star) => star.used);
@@ -66,7 +64,7 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				x2: 'x2',
 				fill: USED,
 				fillOpacity: 0.08,
-				ariaDescription: 'validity range'
+				className: 'cb-validity-range'
 			}),
 			Plot.line(segment(x0, min), {
 				x: 'logPeriod',
@@ -88,14 +86,14 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				y2: (star: DiagramStar) => star.absMag + star.absMagErr,
 				stroke: USED,
 				strokeOpacity: 0.6,
-				ariaDescription: 'error bars'
+				className: 'cb-error-bars'
 			}),
 			Plot.line(segment(min, max), {
 				x: 'logPeriod',
 				y: 'mag',
 				stroke: LINE,
 				strokeWidth: 2,
-				ariaDescription: 'fitted relation'
+				className: 'cb-fitted-relation'
 			}),
 			Plot.dot(used, {
 				x: 'logPeriod',
@@ -103,8 +101,7 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				r: 3,
 				fill: USED,
 				title,
-				ariaLabel: pointLabel,
-				ariaDescription: USED_LABEL
+				className: USED_CLASS
 			}),
 			Plot.dot(rejected, {
 				x: 'logPeriod',
@@ -114,8 +111,7 @@ export function plDiagramOptions(stars: DiagramStar[], relation: DiagramRelation
 				stroke: REJECTED,
 				strokeWidth: 2,
 				title,
-				ariaLabel: pointLabel,
-				ariaDescription: REJECTED_LABEL
+				className: REJECTED_CLASS
 			})
 		]
 	};
@@ -145,8 +141,7 @@ export function residualOptions(stars: DiagramStar[], relation: DiagramRelation,
 					r: 2.5,
 					fill: USED,
 					title,
-					ariaLabel: pointLabel,
-					ariaDescription: `${USED_LABEL} residuals`
+					className: `${USED_CLASS}-residuals`
 				}
 			),
 			Plot.dot(
@@ -159,8 +154,7 @@ export function residualOptions(stars: DiagramStar[], relation: DiagramRelation,
 					stroke: REJECTED,
 					strokeWidth: 2,
 					title,
-					ariaLabel: pointLabel,
-					ariaDescription: `${REJECTED_LABEL} residuals`
+					className: `${REJECTED_CLASS}-residuals`
 				}
 			)
 		]
