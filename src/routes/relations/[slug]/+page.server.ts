@@ -11,7 +11,7 @@ export const load: PageServerLoad = ({ locals, params, url }) =>
 	}));
 
 export const actions: Actions = {
-	watch: watchAction(true),
-	unwatch: watchAction(false),
-	reproduce: reproduceAction
+	watch: async (event) => watchAction(event, true),
+	unwatch: async (event) => watchAction(event, false),
+	reproduce: async (event) => reproduceAction(event)
 };

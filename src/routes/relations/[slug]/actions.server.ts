@@ -6,14 +6,14 @@ import { watchRelation } from '$lib/server/registry/relations';
 import { findVersion } from '$lib/server/registry/versions';
 
 /** Form actions shared by the relation page and the version page. */
-export const watchAction = (watching: boolean) => async (event: RequestEvent) =>
+export const watchAction = (event: RequestEvent, watching: boolean) =>
 	orActionFailure('watch', async () => {
 		const slug = event.params.slug ?? '';
 		await watchRelation(event.locals.em, actorOf(event.locals), slug, watching);
 		return { action: 'watch', watching };
 	});
 
-export const reproduceAction = async (event: RequestEvent) =>
+export const reproduceAction = (event: RequestEvent) =>
 	orActionFailure('reproduce', async () => {
 		const form = await event.request.formData();
 		const raw = String(event.params.n ?? form.get('version') ?? '');

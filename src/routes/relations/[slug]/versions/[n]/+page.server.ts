@@ -10,4 +10,6 @@ export const load: PageServerLoad = ({ locals, params, url }) =>
 		signedIn: !!locals.user
 	}));
 
-export const actions: Actions = { reproduce: reproduceAction };
+export const actions: Actions = {
+	reproduce: async (event) => reproduceAction(event)
+};
