@@ -7,6 +7,7 @@ import { closeOrm, getOrm, getReadOrm, usesReadReplica } from '$lib/server/db';
 import { handleCors } from '$lib/server/edge/cors-hook';
 import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
+import { handleTheme } from '$lib/server/theme';
 
 export const init: ServerInit = async () => {
 	const config = getConfig();
@@ -60,7 +61,15 @@ const handleApiProblems: Handle = async ({ event, resolve }) => {
 	return problem(response.status, body.message, body.errors ? { errors: body.errors } : {}, headers);
 };
 
-export const handle = sequence(handleRequestLog, handleCors, handleDb, handleApiProblems, handleAuth, handleGuard);
+export const handle = sequence(
+	handleRequestLog,
+	handleCors,
+	handleDb,
+	handleApiProblems,
+	handleAuth,
+	handleGuard,
+	handleTheme
+);
 
 export const handleError: HandleServerError = ({ error, event, status, message }) => {
 	if (status === 404) return { message };

@@ -9,7 +9,16 @@ export interface NavigationItem {
 	label: string;
 }
 
-export const PRIMARY_NAVIGATION: NavigationItem[] = [{ href: '/', label: 'Overview' }];
+export const PRIMARY_NAVIGATION: NavigationItem[] = [
+	{ href: '/', label: 'Overview' },
+	{ href: '/relations', label: 'Relations' },
+	{ href: '/docs/api', label: 'API' }
+];
+
+/** An entry is current on its own page and on the pages below it (the overview only on itself). */
+export function isCurrentSection(href: string, pathname: string): boolean {
+	return href === '/' ? pathname === '/' : pathname === href || pathname.startsWith(`${href}/`);
+}
 
 export interface Viewer {
 	displayName: string;
