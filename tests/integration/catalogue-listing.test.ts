@@ -4,7 +4,8 @@ import { EMPTY_FILTER, type CatalogueFilter } from '../../src/lib/catalogue/filt
 import { relationVersionDigest } from '../../src/lib/calibration/index';
 import { listCatalogue } from '../../src/lib/server/catalogue/relation-listing';
 import { loadRelationView } from '../../src/lib/server/catalogue/relation-view';
-import { reproduceFrozenVersion, type FrozenContent } from '../../src/lib/server/catalogue/refit-version';
+import type { FrozenContent } from '../../src/lib/server/catalogue/refit-version';
+import { reproduceVersion } from '../../src/lib/server/registry/reproduce';
 import { RelationVersion } from '../../src/lib/server/entities/index';
 import type { Actor } from '../../src/lib/server/registry/actor';
 import { createCalibratorSet, uploadRevision } from '../../src/lib/server/registry/calibrator-sets';
@@ -188,10 +189,10 @@ describe('the relation view', () => {
 			digest: content.digest,
 			requiredCitations: ['Invented 2026']
 		});
-		const outcome = await reproduceFrozenVersion(orm.em.fork(), content);
-		expect(outcome).toMatchObject({ digest_matches: true, differences: [], max_relative_difference: 0 });
+		const outcome = await reproduceVersion(orm.em.fork(), null, slugs.active, 1);
+		expect(outcome).toMatchObject({ digestMatches: true, differences: [], maxRelativeDifference: 0 });
 		const { digest, ...frozen } = content;
 		expect(relationVersionDigest(frozen)).toBe(digest);
-		expect(outcome.recomputed_digest).toBe(digest);
+		expect(outcome.recomputedDigest).toBe(digest);
 	});
 });

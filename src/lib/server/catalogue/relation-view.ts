@@ -39,7 +39,7 @@ const iso = (date: Date | null | undefined) => date?.toISOString() ?? null;
 
 async function diagramPoints(em: EntityManager, content: FrozenContent): Promise<DiagramPoint[]> {
 	// The bootstrap changes only the intervals, not which stars are used: leave it out here.
-	const result = await refitFrozenVersion(em, content, { withBootstrap: false });
+	const result = await refitFrozenVersion(em, content);
 	return result.residuals
 		.filter((residual) => residual.absMag !== null && residual.absMagErr !== null && residual.residual !== null)
 		.map((residual) => ({

@@ -135,6 +135,17 @@ export function reproduceContent(
 	};
 }
 
+/** The read API's (and the version page's) snake_case form of a reproduction. */
+export function reproductionToWire(reproduction: Reproduction) {
+	return {
+		digest_matches: reproduction.digestMatches,
+		digest: reproduction.digest,
+		recomputed_digest: reproduction.recomputedDigest,
+		max_relative_difference: reproduction.maxRelativeDifference,
+		differences: reproduction.differences
+	};
+}
+
 /** The version's reproduction, or 404 when the caller may not see it. */
 export async function reproduceVersion(
 	em: EntityManager,

@@ -1,9 +1,8 @@
 import { error, type RequestEvent } from '@sveltejs/kit';
 import { orActionFailure } from '$lib/server/catalogue/page-errors';
-import { reproduceFrozenVersion, type FrozenContent } from '$lib/server/catalogue/refit-version';
 import { actorOf, readerOf, versionParam } from '$lib/server/registry/http';
 import { watchRelation } from '$lib/server/registry/relations';
-import { findVersion } from '$lib/server/registry/versions';
+import { reproduceVersion, reproductionToWire } from '$lib/server/registry/reproduce';
 
 /** Form actions shared by the relation page and the version page. */
 export const watchAction = (event: RequestEvent, watching: boolean) =>
@@ -18,16 +17,12 @@ export const reproduceAction = (event: RequestEvent) =>
 		const form = await event.request.formData();
 		const raw = String(event.params.n ?? form.get('version') ?? '');
 		if (!/^[1-9]\d{0,8}$/.test(raw)) error(400, 'Say which version to reproduce.');
-		const { version } = await findVersion(
+		const version = versionParam(raw);
+		const reproduction = await reproduceVersion(
 			event.locals.em,
 			readerOf(event.locals),
 			event.params.slug ?? '',
-			versionParam(raw)
+			version
 		);
-		const content = { ...(version.content as unknown as FrozenContent), digest: version.digest };
-		return {
-			action: 'reproduce',
-			version: content.version,
-			result: await reproduceFrozenVersion(event.locals.em, content)
-		};
+		return { action: 'reproduce', version, result: reproductionToWire(reproduction) };
 	});

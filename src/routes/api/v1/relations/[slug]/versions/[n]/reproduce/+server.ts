@@ -1,21 +1,12 @@
 import { json } from '@sveltejs/kit';
 import { readerOf, registryResponse, versionParam } from '$lib/server/registry/http';
 import { VIEWER_DEPENDENT_HEADERS } from '$lib/server/registry/read-http';
-import { reproduceVersion } from '$lib/server/registry/reproduce';
+import { reproduceVersion, reproductionToWire } from '$lib/server/registry/reproduce';
 import type { RequestHandler } from './$types';
 
 /** Reruns the version's frozen fit spec on its frozen calibrator revision and recomputes the digest. */
 export const POST: RequestHandler = ({ locals, params }) =>
 	registryResponse(async () => {
 		const reproduction = await reproduceVersion(locals.em, readerOf(locals), params.slug, versionParam(params.n));
-		return json(
-			{
-				digest_matches: reproduction.digestMatches,
-				digest: reproduction.digest,
-				recomputed_digest: reproduction.recomputedDigest,
-				max_relative_difference: reproduction.maxRelativeDifference,
-				differences: reproduction.differences
-			},
-			{ headers: VIEWER_DEPENDENT_HEADERS }
-		);
+		return json(reproductionToWire(reproduction), { headers: VIEWER_DEPENDENT_HEADERS });
 	});
