@@ -12,8 +12,21 @@ export interface NavigationItem {
 export const PRIMARY_NAVIGATION: NavigationItem[] = [
 	{ href: '/', label: 'Overview' },
 	{ href: '/relations', label: 'Relations' },
+	{ href: '/calibrator-sets', label: 'Calibrator sets' },
+	{ href: '/worksheet', label: 'Worksheet' },
 	{ href: '/docs/api', label: 'API' }
 ];
+
+/** Sections that only make sense signed in: the review queue and one's own light-curve uploads. */
+export const SIGNED_IN_NAVIGATION: NavigationItem[] = [
+	{ href: '/review', label: 'Review' },
+	{ href: '/light-curves', label: 'Light curves' }
+];
+
+export function primaryNavigation(viewer: Viewer | null): NavigationItem[] {
+	if (!viewer) return PRIMARY_NAVIGATION;
+	return [...PRIMARY_NAVIGATION.slice(0, -1), ...SIGNED_IN_NAVIGATION, ...PRIMARY_NAVIGATION.slice(-1)];
+}
 
 /** An entry is current on its own page and on the pages below it (the overview only on itself). */
 export function isCurrentSection(href: string, pathname: string): boolean {

@@ -28,7 +28,14 @@ export const MAIN_PAGES: MainPage[] = [
 	{ name: 'api-docs', path: () => '/docs/api', ready: '[data-testid="endpoint-table"]' },
 	{ name: 'sign-in', path: () => '/sign-in' },
 	{ name: 'account', path: () => '/account', as: 'admin' },
-	{ name: 'admin', path: () => '/admin', as: 'admin' }
+	{ name: 'admin', path: () => '/admin', as: 'admin' },
+	{ name: 'calibrator-sets', path: () => '/calibrator-sets' },
+	{ name: 'calibrator-set', path: (seed) => `/calibrator-sets/${seed.versions[0].calibrator_set.slug}` },
+	{ name: 'worksheet', path: () => '/worksheet' },
+	{ name: 'review', path: () => '/review', as: 'admin' },
+	{ name: 'light-curves', path: () => '/light-curves', as: 'admin' },
+	{ name: 'admin-settings', path: () => '/admin/settings', as: 'admin' },
+	{ name: 'admin-audit', path: () => '/admin/audit', as: 'admin' }
 ];
 
 const THEMES = ['light', 'dark'] as const;
