@@ -3,9 +3,24 @@ import type { Pathname } from '$app/types';
 /** Paths of pages (API paths are never navigation targets, and would overflow `resolve`'s overloads). */
 export type PagePath = Exclude<Pathname, `/api/${string}`>;
 
+/** The pages the header links to; a page that does not exist is a type error here. */
+export type SectionPath = Extract<
+	PagePath,
+	| '/'
+	| '/relations'
+	| '/calibrator-sets'
+	| '/worksheet'
+	| '/docs/api'
+	| '/review'
+	| '/light-curves'
+	| '/sign-in'
+	| '/account'
+	| '/admin'
+>;
+
 /** Primary navigation. Only pages that exist are listed; each capability adds its own entry. */
 export interface NavigationItem {
-	href: PagePath;
+	href: SectionPath;
 	label: string;
 }
 

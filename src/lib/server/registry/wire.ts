@@ -138,7 +138,7 @@ export function jobToWire(job: AnalysisJobEntity) {
 		started_at: iso(job.startedAt),
 		finished_at: iso(job.finishedAt),
 		// Other kinds (light curves) store their result already in wire form.
-		result: result ? (job.kind === 'fit' ? fitResultToWire(result) : job.result) : null,
+		result: result ? (job.kind === 'fit' ? fitResultToWire(result) : (job.result ?? null)) : null,
 		error: job.error ?? null
 	};
 }
