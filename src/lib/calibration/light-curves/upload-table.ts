@@ -73,7 +73,7 @@ const MAX_REPORTED_ISSUES = 200;
 const NUMBER = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/;
 const NOT_A_NUMBER = new Set(['nan', '-nan', '+nan', 'inf', '-inf', '+inf', 'infinity', '-infinity']);
 /** Star ids become a page path segment, so no slash; spaces, dots, plus and dashes as catalogues use them. */
-export const STAR_ID_PATTERN = /^[\p{L}\p{N}][\p{L}\p{N} ._+\-]{0,99}$/u;
+export const STAR_ID_PATTERN = /^[\p{L}\p{N}][\p{L}\p{N} ._+-]{0,99}$/u;
 export const STAR_ID_RULE = 'a star id is 1–100 letters, digits, spaces and . _ + -, starting with a letter or digit';
 
 /** Strict UTF-8 decoding; the issue names the line of the first byte that is not UTF-8. */
