@@ -93,9 +93,9 @@ test('a reviewer finds the refit waiting, compares it, asks for changes, and app
 	// Both relations are drawn over the calibrators, each a line with a path.
 	const figure = page.getByTestId('overlay-figure');
 	await expect(figure.locator('svg[role="img"]')).toBeVisible();
-	await expect(figure.locator('g[aria-description="current relation"] path')).toHaveCount(1);
-	await expect(figure.locator('g[aria-description="proposed relation"] path')).toHaveCount(1);
-	expect(await figure.locator('g[aria-description^="calibrators of the proposal"] circle').count()).toBeGreaterThan(30);
+	await expect(figure.locator('g.overlay-current path')).toHaveCount(1);
+	await expect(figure.locator('g.overlay-proposed path')).toHaveCount(1);
+	expect(await figure.locator('g.overlay-proposal-calibrators circle').count()).toBeGreaterThan(30);
 
 	// Chosen periods recompute the downstream table.
 	await page.getByLabel('Periods (days)').fill('5, 20');
