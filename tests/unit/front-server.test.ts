@@ -75,6 +75,14 @@ afterAll(async () => {
 const callsTo = (path: string) => appCalls.filter((call) => call === path).length;
 
 describe('front server', () => {
+	test('keeps idle connections longer than a load balancer idles (60 s, common practice) and announces it', async () => {
+		expect(server.keepAliveTimeout).toBeGreaterThan(60_000);
+		expect(server.headersTimeout).toBeGreaterThan(server.keepAliveTimeout);
+		const response = await fetch(`${base}/healthz`);
+		await response.arrayBuffer();
+		expect(response.headers.get('keep-alive')).toMatch(/timeout=6[1-9]/);
+	});
+
 	test('a public immutable answer reaches the app once and is replayed byte for byte', async () => {
 		const path = '/api/v1/pins/public@1';
 		const first = await fetch(base + path);

@@ -156,6 +156,16 @@ export function frontRequestHandler(options: FrontServerOptions) {
 	};
 }
 
+/**
+ * Idle keep-alive connections outlive a load balancer's usual 60 s idle timeout (common practice), so
+ * the server never closes a connection a client or proxy is just about to reuse; Node's 5 s default
+ * races clients under load, which then see ECONNRESET.
+ */
+const KEEP_ALIVE_MS = 65_000;
+
 export function createFrontServer(options: FrontServerOptions): Server {
-	return createServer(frontRequestHandler(options));
+	const server = createServer(frontRequestHandler(options));
+	server.keepAliveTimeout = KEEP_ALIVE_MS;
+	server.headersTimeout = KEEP_ALIVE_MS + 1_000;
+	return server;
 }
