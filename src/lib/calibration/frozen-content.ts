@@ -156,7 +156,30 @@ export const calibratorRevisionContentSchema = z
 		columns: z
 			.array(z.strictObject({ field: fieldName, source_column: z.string().min(1), unit: z.string().min(1).nullable() }))
 			.min(1),
-		rows: z.array(z.strictObject({ star: z.string().min(1), values: z.record(z.string(), cellValue) }))
+		rows: z.array(z.strictObject({ star: z.string().min(1), values: z.record(z.string(), cellValue) })),
+		/**
+		 * Values taken from light-curve analyses, each with the analysis it came from. Absent when the
+		 * table was uploaded as it is, so such revisions keep the content (and digest) they always had.
+		 */
+		value_sources: z
+			.array(
+				z.strictObject({
+					star: z.string().min(1),
+					field: fieldName,
+					value: finite,
+					replaced: cellValue,
+					light_curve: z.strictObject({
+						result: z.uuid(),
+						upload: z.uuid(),
+						source_digest: digestString,
+						band: z.string().min(1).nullable(),
+						quantity: z.enum(['period_days', 'period_err_days', 'mean_mag_intensity', 'mean_mag_intensity_err']),
+						engine_version: z.string().min(1)
+					})
+				})
+			)
+			.min(1)
+			.optional()
 	})
 	.superRefine((content, ctx) => {
 		const fields = content.columns.map((column) => column.field);
@@ -173,6 +196,22 @@ export const calibratorRevisionContentSchema = z
 					code: 'custom',
 					path: ['rows', i, 'values'],
 					message: 'must have exactly one value per mapped column (write null for a missing value)'
+				});
+			}
+		});
+		const rowsByStar = new Map(content.rows.map((row) => [row.star, row]));
+		const sourced = new Set<string>();
+		content.value_sources?.forEach((source, i) => {
+			const key = `${source.star}\u0000${source.field}`;
+			if (sourced.has(key)) {
+				ctx.addIssue({ code: 'custom', path: ['value_sources', i], message: 'names a value twice' });
+			}
+			sourced.add(key);
+			if (rowsByStar.get(source.star)?.values[source.field] !== source.value) {
+				ctx.addIssue({
+					code: 'custom',
+					path: ['value_sources', i, 'value'],
+					message: 'must equal the value of that star and field in rows'
 				});
 			}
 		});

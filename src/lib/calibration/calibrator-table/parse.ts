@@ -29,6 +29,11 @@ export interface TableOptions {
 	 * who fits that way may keep them.
 	 */
 	keepNonPositiveParallax?: boolean;
+	/**
+	 * Required fields a later step fills (periods from light-curve analyses): their column may be absent
+	 * and their cells empty here; that step then checks every row has a value.
+	 */
+	filledLater?: readonly string[];
 }
 
 export interface TableIssue {
@@ -99,7 +104,8 @@ export function parseCalibratorTable(
 		return empty;
 	}
 
-	const columns = resolveColumns(header, mapping, report);
+	const filledLater = new Set(options.filledLater ?? []);
+	const columns = resolveColumns(header, mapping, report, filledLater);
 	if (issues.length > 0) return empty;
 
 	const rows: CanonicalRow[] = [];
@@ -113,7 +119,8 @@ export function parseCalibratorTable(
 		const values: Record<string, CellValue> = {};
 		for (const column of columns) {
 			const raw = cells[column.index].trim();
-			const cell = readCell(raw, column.definition, column.unitId);
+			const required = column.definition.required === true && !filledLater.has(column.definition.field);
+			const cell = readCell(raw, column.definition, column.unitId, required);
 			if (raw.length > limits.maxCellLength) {
 				report({
 					line,
@@ -179,7 +186,8 @@ interface ResolvedColumn {
 function resolveColumns(
 	header: string[],
 	mapping: ColumnMapping,
-	report: (issue: TableIssue) => void
+	report: (issue: TableIssue) => void,
+	filledLater: ReadonlySet<string>
 ): ResolvedColumn[] {
 	const resolved: ResolvedColumn[] = [];
 	const byField = new Map<string, string>();
@@ -216,7 +224,7 @@ function resolveColumns(
 		resolved.push({ index, source, definition, unitId: definition.units.length > 0 ? unitId : null });
 	});
 	for (const field of REQUIRED_FIELDS) {
-		if (!byField.has(field))
+		if (!byField.has(field) && !filledLater.has(field))
 			report({ line: 1, column: null, value: null, reason: `no column fills the required field "${field}"` });
 	}
 	return resolved;
@@ -224,9 +232,14 @@ function resolveColumns(
 
 const MISSING = new Set(['', 'na', 'nan', 'null', '-99.99']);
 
-function readCell(raw: string, definition: FieldDefinition, unitId: string | null): CellValue | { reason: string } {
+function readCell(
+	raw: string,
+	definition: FieldDefinition,
+	unitId: string | null,
+	required: boolean
+): CellValue | { reason: string } {
 	if (definition.kind === 'text') {
-		if (raw === '') return definition.required ? { reason: 'is empty' } : null;
+		if (raw === '') return required ? { reason: 'is empty' } : null;
 		return raw;
 	}
 	if (definition.kind === 'population') {
@@ -236,7 +249,7 @@ function readCell(raw: string, definition: FieldDefinition, unitId: string | nul
 				'is not a population id (classical_fundamental, classical_first_overtone, type2_bl_her, type2_w_vir, type2_rv_tau)'
 		};
 	}
-	if (MISSING.has(raw.toLowerCase())) return definition.required ? { reason: 'is missing' } : null;
+	if (MISSING.has(raw.toLowerCase())) return required ? { reason: 'is missing' } : null;
 	if (!/^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(raw)) return { reason: 'is not a number' };
 	const unit = definition.units.find((candidate) => candidate.id === unitId)!;
 	const value = unit.toCanonical(Number(raw));

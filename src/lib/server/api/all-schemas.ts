@@ -9,3 +9,4 @@ import '../registry/schemas';
 import './read-schemas';
 import './export-schemas';
 import './light-curve-schemas';
+import './revision-upload-schemas';

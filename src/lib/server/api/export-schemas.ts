@@ -117,6 +117,25 @@ export const CalibratorRevisionExportSchema = registerApiSchema(
 				source_file: z.object({ name: z.string(), media_type: z.string(), digest }),
 				columns: z.array(z.object({ field: z.string(), source_column: z.string(), unit: z.string().nullable() })),
 				rows: z.array(z.object({ star: z.string(), values: z.record(z.string(), cell) })),
+				value_sources: z
+					.array(
+						z.object({
+							star: z.string(),
+							field: z.string(),
+							value: z.number(),
+							replaced: cell.describe('What the uploaded table held in that cell'),
+							light_curve: z.object({
+								result: z.uuid().describe('The analysis (one star in one band)'),
+								upload: z.uuid(),
+								source_digest: digest.describe('SHA-256 of the raw time-series file'),
+								band: z.string().nullable(),
+								quantity: z.enum(['period_days', 'period_err_days', 'mean_mag_intensity', 'mean_mag_intensity_err']),
+								engine_version: z.string()
+							})
+						})
+					)
+					.optional()
+					.describe('Present only when values were taken from light-curve analyses: where each came from'),
 				digest
 			})
 			.describe(

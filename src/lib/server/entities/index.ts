@@ -1,5 +1,6 @@
 import { ApiToken } from './api-token.entity';
 import { AuditEvent } from './audit-event.entity';
+import { CalibratorValueSource } from './calibrator-value-source.entity';
 import { GroupMembership } from './group-membership.entity';
 import { LightCurveResult } from './light-curve-result.entity';
 import { LightCurveUpload } from './light-curve-upload.entity';
@@ -20,7 +21,8 @@ export const ENTITIES = [
 	AuditEvent,
 	...REGISTRY_ENTITIES,
 	LightCurveUpload,
-	LightCurveResult
+	LightCurveResult,
+	CalibratorValueSource
 ];
 
 export { ApiToken, AuditEvent, Group, GroupMembership, OneTimeLink, Session, User };
@@ -37,6 +39,7 @@ export type { AuditEventEntity, AuditKind } from './audit-event.entity';
 export { AnalysisJob } from './analysis-job.entity';
 export { CalibratorRevision } from './calibrator-revision.entity';
 export { CalibratorSet } from './calibrator-set.entity';
+export { CalibratorValueSource } from './calibrator-value-source.entity';
 export { Proposal } from './proposal.entity';
 export { ProposalComment } from './proposal-comment.entity';
 export { Relation } from './relation.entity';

@@ -7,14 +7,17 @@ import {
 	diffCalibratorRevisions,
 	parseCalibratorTable,
 	sealCalibratorRevision,
+	takeLightCurveValues,
 	type CalibratorRevisionContent,
 	type CanonicalRow,
 	type ColumnMapping,
+	type LightCurveNotice,
 	type MappedColumn,
 	type ParsedTable,
 	type RevisionDiff,
 	type TableIssue,
-	type TableLimits
+	type TableLimits,
+	type ValueSource
 } from '../../calibration/index';
 import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { CalibratorSet } from '../entities/calibrator-set.entity';
@@ -24,6 +27,7 @@ import { contentAddress, type ObjectStorage } from '../storage/object-storage';
 import { belongsTo, type Actor } from './actor';
 import { auditRegistry } from './audit';
 import { conflict, forbidden, invalid, notFound, RegistryError } from './errors';
+import { finishedAnalyses, recordValueSources, type LightCurveValuesRequest } from './light-curve-values';
 import { decodeUtf8, formulaCellIssues, issuesToFieldErrors } from './upload-checks';
 
 export const UPLOAD_MEDIA_TYPES = ['text/csv', 'text/tab-separated-values'] as const;
@@ -82,6 +86,8 @@ export interface UploadInput {
 	note: string;
 	/** Keep zero and negative parallaxes (for parallax-space fits) instead of refusing them. */
 	keepNonPositiveParallax?: boolean;
+	/** Take periods and mean magnitudes from one of the uploader's light-curve uploads. */
+	lightCurves?: LightCurveValuesRequest;
 }
 
 export interface UploadLimits extends TableLimits {
@@ -105,7 +111,7 @@ function refuseTable(issues: TableIssue[], total = issues.length): never {
  * validation report, and `uploadRevision` runs it again before it stores. Throws 415, 413 or 422.
  */
 export function checkUploadTable(
-	input: Pick<UploadInput, 'bytes' | 'mediaType' | 'mapping' | 'keepNonPositiveParallax'>,
+	input: Pick<UploadInput, 'bytes' | 'mediaType' | 'mapping' | 'keepNonPositiveParallax' | 'lightCurves'>,
 	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
 ): { mediaType: UploadMediaType; table: ParsedTable } {
 	const mediaType = input.mediaType.split(';')[0].trim().toLowerCase();
@@ -118,7 +124,8 @@ export function checkUploadTable(
 	const decoded = decodeUtf8(input.bytes);
 	if (!decoded.ok) refuseTable([decoded.issue]);
 	const table = parseCalibratorTable(decoded.text, input.mapping, limits, {
-		keepNonPositiveParallax: input.keepNonPositiveParallax ?? false
+		keepNonPositiveParallax: input.keepNonPositiveParallax ?? false,
+		filledLater: input.lightCurves ? ['period_days'] : []
 	});
 	if (table.issues.length > 0) refuseTable(table.issues);
 	const expected = mediaType === 'text/csv' ? ',' : '\t';
@@ -139,6 +146,41 @@ export function checkUploadTable(
 	return { mediaType: mediaType as UploadMediaType, table };
 }
 
+export interface PreparedRevisionTable {
+	mediaType: UploadMediaType;
+	columns: MappedColumn[];
+	rows: CanonicalRow[];
+	/** Values taken from light-curve analyses (empty when none were asked for). */
+	valueSources: ValueSource[];
+	lightCurveNotices: LightCurveNotice[];
+}
+
+/**
+ * `checkUploadTable`, then the values asked for from a light-curve upload: the table a revision would
+ * hold, still without writing anything. A row left without a period is refused by line and column.
+ */
+export async function prepareRevisionTable(
+	em: EntityManager,
+	actor: Actor,
+	input: Pick<UploadInput, 'bytes' | 'mediaType' | 'mapping' | 'keepNonPositiveParallax' | 'lightCurves'>,
+	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
+): Promise<PreparedRevisionTable> {
+	const { mediaType, table } = checkUploadTable(input, limits);
+	if (!input.lightCurves) {
+		return { mediaType, columns: table.columns, rows: table.rows, valueSources: [], lightCurveNotices: [] };
+	}
+	const analyses = await finishedAnalyses(em, actor, input.lightCurves.upload);
+	const taken = takeLightCurveValues(table, analyses, input.lightCurves.fill);
+	if (taken.issues.length > 0) refuseTable(taken.issues);
+	return {
+		mediaType,
+		columns: taken.columns,
+		rows: taken.rows,
+		valueSources: taken.sources,
+		lightCurveNotices: taken.notices
+	};
+}
+
 /**
  * Validates an upload completely, then stores the revision row and the original file together:
  * either both exist afterwards or neither does.
@@ -151,10 +193,23 @@ export async function uploadRevision(
 	input: UploadInput,
 	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
 ) {
+	return (await storeRevision(em, storage, actor, slug, input, limits)).revision;
+}
+
+/** `uploadRevision`, also answering what became of the light-curve analyses asked for. */
+export async function storeRevision(
+	em: EntityManager,
+	storage: ObjectStorage,
+	actor: Actor,
+	slug: string,
+	input: UploadInput,
+	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
+) {
 	const set = await findCalibratorSet(em, slug);
 	if (!(await belongsTo(em, actor, set.group.id)))
 		throw forbidden(`Only members of ${set.group.slug} may upload revisions of ${set.slug}.`);
-	const { mediaType, table } = checkUploadTable(input, limits);
+	const table = await prepareRevisionTable(em, actor, input, limits);
+	const { mediaType } = table;
 
 	const address = contentAddress(SOURCE_PREFIX, input.bytes);
 	const { key: sourceKey, sha256: sourceSha } = address;
@@ -170,7 +225,7 @@ export async function uploadRevision(
 				{ orderBy: { number: 'desc' }, fields: ['number'] }
 			);
 			const number = (last?.number ?? 0) + 1;
-			const content = sealContent(set.slug, number, input, mediaType, sourceSha, table.columns, table.rows);
+			const content = sealContent(set.slug, number, input, mediaType, sourceSha, table);
 			const revision = tx.create(CalibratorRevision, {
 				calibratorSet: set.id,
 				number,
@@ -185,18 +240,22 @@ export async function uploadRevision(
 				note: input.note,
 				uploadedBy: actor.id
 			});
+			recordValueSources(tx, revision, table.valueSources);
 			await tx.flush();
 			await auditRegistry(tx, 'calibrator-revision-uploaded', actor, `${set.slug}#${number}`, {
 				digest: content.digest,
 				sourceSha256: sourceSha,
-				rows: table.rows.length
+				rows: table.rows.length,
+				...(input.lightCurves
+					? { lightCurveUpload: input.lightCurves.upload, valuesFromLightCurves: table.valueSources.length }
+					: {})
 			});
 			// Last step before commit: a failed put rolls the row back.
 			await storage.putAt(address, input.bytes, mediaType);
 			stored = true;
 			return revision;
 		});
-		return revision;
+		return { revision, valueSources: table.valueSources, lightCurveNotices: table.lightCurveNotices };
 	} catch (error) {
 		if (stored && !existedBefore) await storage.delete(sourceKey).catch(() => undefined);
 		throw error;
@@ -209,16 +268,17 @@ function sealContent(
 	input: UploadInput,
 	mediaType: string,
 	sourceSha: string,
-	columns: MappedColumn[],
-	rows: CanonicalRow[]
+	table: Pick<PreparedRevisionTable, 'columns' | 'rows' | 'valueSources'>
 ): CalibratorRevisionContent & { digest: string } {
 	try {
 		return sealCalibratorRevision({
 			calibrator_set: slug,
 			revision: number,
 			source_file: { name: input.fileName, media_type: mediaType, digest: `sha256:${sourceSha}` },
-			columns,
-			rows
+			columns: table.columns,
+			rows: table.rows,
+			// Only a revision that took values from light curves carries the key.
+			...(table.valueSources.length > 0 ? { value_sources: table.valueSources } : {})
 		});
 	} catch (error) {
 		if (error instanceof CalibrationInputError) {

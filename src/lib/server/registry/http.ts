@@ -49,7 +49,7 @@ export function readRegistryJson<T extends z.ZodType>(event: RequestEvent, schem
 	return readJsonBody(event.request, schema, getConfig().CANDLEBOOK_MAX_JSON_BYTES);
 }
 
-const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
+export const UUID = /^[0-9a-f]{8}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{4}-[0-9a-f]{12}$/i;
 
 /** A route's id parameter, or 404 before any query (PostgreSQL refuses a malformed uuid). */
 export function uuidParam(value: string | undefined, what: string): string {

@@ -1,9 +1,11 @@
 import { json } from '@sveltejs/kit';
 import { readBodyWithLimit } from '$lib/server/api/request-body';
 import { getConfig } from '$lib/server/config';
-import { UPLOAD_MEDIA_TYPES, uploadRevision } from '$lib/server/registry/calibrator-sets';
+import { LIGHT_CURVE_FILLS, type LightCurveFill } from '$lib/calibration/index';
+import { storeRevision, UPLOAD_MEDIA_TYPES } from '$lib/server/registry/calibrator-sets';
 import { RegistryError } from '$lib/server/registry/errors';
-import { actorOf, registryResponse } from '$lib/server/registry/http';
+import { actorOf, registryResponse, UUID } from '$lib/server/registry/http';
+import type { LightCurveValuesRequest } from '$lib/server/registry/light-curve-values';
 import { ColumnMappingSchema } from '$lib/server/registry/schemas';
 import { revisionToWire } from '$lib/server/registry/wire';
 import { getObjectStorage } from '$lib/server/storage/app-storage';
@@ -12,7 +14,9 @@ import type { RequestHandler } from './$types';
 /**
  * Uploads a revision as a raw text/csv or text/tab-separated-values body. Query: `mapping` (JSON
  * column mapping for non-canonical headers), `name` (the file's name), `note`, and
- * `non_positive_parallax=keep` to keep zero and negative parallaxes for parallax-space fits.
+ * `non_positive_parallax=keep` to keep zero and negative parallaxes for parallax-space fits, and
+ * `light_curves=<upload id>` (with `light_curve_fill=blank|all`) to take periods and mean magnitudes from
+ * a finished light-curve upload of the caller's.
  */
 export const POST: RequestHandler = (event) =>
 	registryResponse(async () => {
@@ -25,11 +29,12 @@ export const POST: RequestHandler = (event) =>
 			);
 		}
 		const mapping = parseMapping(event.url.searchParams.get('mapping'));
+		const lightCurves = parseLightCurves(event.url.searchParams);
 		const config = getConfig();
 		const bytes = await readBodyWithLimit(event.request, config.CANDLEBOOK_MAX_UPLOAD_BYTES);
 		const name =
 			event.url.searchParams.get('name')?.slice(0, 200) || `upload.${mediaType === 'text/csv' ? 'csv' : 'tsv'}`;
-		const revision = await uploadRevision(
+		const { revision, valueSources, lightCurveNotices } = await storeRevision(
 			event.locals.em,
 			getObjectStorage(),
 			actorOf(event.locals),
@@ -40,7 +45,8 @@ export const POST: RequestHandler = (event) =>
 				fileName: name,
 				mapping,
 				note: event.url.searchParams.get('note')?.slice(0, 2000) ?? '',
-				keepNonPositiveParallax: event.url.searchParams.get('non_positive_parallax') === 'keep'
+				keepNonPositiveParallax: event.url.searchParams.get('non_positive_parallax') === 'keep',
+				lightCurves
 			},
 			{
 				maxBytes: config.CANDLEBOOK_MAX_UPLOAD_BYTES,
@@ -49,10 +55,16 @@ export const POST: RequestHandler = (event) =>
 				maxCellLength: 500
 			}
 		);
-		return json(revisionToWire(event.params.slug, revision), {
-			status: 201,
-			headers: { location: `/api/v1/calibrator-sets/${event.params.slug}/revisions/${revision.number}` }
-		});
+		const taken = lightCurves
+			? { ...lightCurves, values_taken: valueSources.length, notices: lightCurveNotices }
+			: null;
+		return json(
+			{ ...revisionToWire(event.params.slug, revision), light_curves: taken },
+			{
+				status: 201,
+				headers: { location: `/api/v1/calibrator-sets/${event.params.slug}/revisions/${revision.number}` }
+			}
+		);
 	});
 
 function parseMapping(raw: string | null) {
@@ -73,4 +85,28 @@ function parseMapping(raw: string | null) {
 		);
 	}
 	return parsed.data;
+}
+
+function parseLightCurves(query: URLSearchParams): LightCurveValuesRequest | undefined {
+	const upload = query.get('light_curves');
+	const fill = query.get('light_curve_fill') ?? 'blank';
+	if (upload === null) {
+		if (query.has('light_curve_fill')) {
+			throw new RegistryError(422, 'validation-failed', 'light_curve_fill needs light_curves.', [
+				{ path: 'light_curves', message: 'is required when light_curve_fill is given' }
+			]);
+		}
+		return undefined;
+	}
+	const errors = [
+		...(UUID.test(upload)
+			? []
+			: [{ path: 'light_curves', message: 'must be the id (a UUID) of a light-curve upload' }]),
+		...((LIGHT_CURVE_FILLS as readonly string[]).includes(fill)
+			? []
+			: [{ path: 'light_curve_fill', message: `must be one of ${LIGHT_CURVE_FILLS.join(', ')}` }])
+	];
+	if (errors.length > 0)
+		throw new RegistryError(422, 'validation-failed', 'The light-curve options are not valid.', errors);
+	return { upload: upload.toLowerCase(), fill: fill as LightCurveFill };
 }
