@@ -158,7 +158,7 @@ describe('calibrator revisions from light-curve analyses', () => {
 		const row = (star: string) => content.rows.find((candidate) => candidate.star === star)!.values;
 		for (const star of ['KCS-LC-001', 'KCS-LC-002']) {
 			const mine = analyses.filter((result) => result.star === star);
-			const precise = [...mine].sort((a, b) => a.periodErrDays - b.periodErrDays)[0];
+			const precise = [...mine].sort((a, b) => Number(a.periodErrDays) - Number(b.periodErrDays))[0];
 			// The stored values are the analyses' own numbers, exactly.
 			expect(row(star).period_days).toBe(precise.periodDays);
 			expect(row(star).period_err_days).toBe(precise.periodErrDays);

@@ -2,6 +2,7 @@
  * IVOA VOTable 1.4 (https://www.ivoa.net/documents/VOTable/) for a calibrator revision: one TABLE whose
  * FIELDs carry VOUnit units and UCD1+ words, with the revision's digest, licence and required
  * citations as INFO elements, so a VO client (astropy, TOPCAT…) reads the numbers with their meaning.
+ * A revision that took values from light-curve analyses has a second TABLE naming the analysis of each.
  */
 import type { CalibratorRevisionContent } from '../calibration/frozen-content';
 
@@ -123,9 +124,56 @@ export function calibratorRevisionToVoTable(content: CalibratorRevisionContent, 
 		...content.rows.map((row) => `<TR>${fields.map((field, i) => cell(row.values[field], metas[i])).join('')}</TR>`),
 		'</TABLEDATA></DATA>',
 		'</TABLE>',
+		...valueSourcesTable(content),
 		'</RESOURCE>',
 		'</VOTABLE>',
 		''
 	];
 	return lines.join('\n');
+}
+
+const SOURCE_FIELDS: { name: string; datatype: 'char' | 'double'; ucd: string; description: string }[] = [
+	{ name: 'star', datatype: 'char', ucd: 'meta.id', description: 'Star name, as in the calibrators table' },
+	{ name: 'field', datatype: 'char', ucd: 'meta.code', description: 'Column of the calibrators table' },
+	{ name: 'value', datatype: 'double', ucd: 'meta.number', description: 'The value taken (canonical unit of the column)' },
+	{ name: 'replaced', datatype: 'char', ucd: 'meta.note', description: 'What the uploaded table held in that cell' },
+	{ name: 'analysis', datatype: 'char', ucd: 'meta.id', description: 'Light-curve analysis (one star in one band)' },
+	{ name: 'upload', datatype: 'char', ucd: 'meta.id', description: 'Light-curve upload of the analysis' },
+	{ name: 'source_digest', datatype: 'char', ucd: 'meta.checksum', description: 'SHA-256 of the raw time series' },
+	{ name: 'band', datatype: 'char', ucd: 'instr.bandpass', description: 'Band of the analysed series' },
+	{ name: 'quantity', datatype: 'char', ucd: 'meta.code', description: 'Which result of the analysis' },
+	{ name: 'engine_version', datatype: 'char', ucd: 'meta.version', description: 'Version of the analysis engine' }
+];
+
+function valueSourcesTable(content: CalibratorRevisionContent): string[] {
+	const sources = content.value_sources;
+	if (!sources) return [];
+	const td = (value: string | number | boolean | null) =>
+		value === null ? '<TD/>' : `<TD>${escapeXml(String(value))}</TD>`;
+	return [
+		`<TABLE name="value_sources" nrows="${sources.length}">`,
+		'<DESCRIPTION>Values of the calibrators table taken from light-curve analyses, and the analysis of each</DESCRIPTION>',
+		...SOURCE_FIELDS.map((field) => {
+			const arraysize = field.datatype === 'char' ? ' arraysize="*"' : '';
+			return `<FIELD name="${field.name}" datatype="${field.datatype}"${arraysize} ucd="${field.ucd}"><DESCRIPTION>${escapeXml(field.description)}</DESCRIPTION></FIELD>`;
+		}),
+		'<DATA><TABLEDATA>',
+		...sources.map(
+			(source) =>
+				`<TR>${[
+					td(source.star),
+					td(source.field),
+					td(source.value),
+					td(source.replaced),
+					td(source.light_curve.result),
+					td(source.light_curve.upload),
+					td(source.light_curve.source_digest),
+					td(source.light_curve.band),
+					td(source.light_curve.quantity),
+					td(source.light_curve.engine_version)
+				].join('')}</TR>`
+		),
+		'</TABLEDATA></DATA>',
+		'</TABLE>'
+	];
 }

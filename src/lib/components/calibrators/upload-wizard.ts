@@ -1,4 +1,4 @@
-import type { CanonicalRow, MappedColumn, TableIssue } from '$lib/calibration/index';
+import type { CanonicalRow, LightCurveFill, LightCurveNotice, MappedColumn, TableIssue } from '$lib/calibration/index';
 import type { MappingRow } from './column-mapping';
 
 /** What each step of the upload wizard hands to the page (the action's return value). */
@@ -21,6 +21,21 @@ export interface UploadChanges {
 	unchanged: number;
 }
 
+/** The light-curve upload chosen to fill periods and mean magnitudes, carried from step to step. */
+export interface LightCurveChoice {
+	upload: string;
+	fill: LightCurveFill;
+}
+
+/** What the preview says about values taken from light curves. */
+export interface LightCurvePreview {
+	choice: LightCurveChoice;
+	/** `star\u0000field` of every cell an analysis filled (to mark them in the rows shown). */
+	cells: string[];
+	valueCount: number;
+	notices: LightCurveNotice[];
+}
+
 export type WizardState =
 	| { step: 'file'; message: string; issues?: TableIssue[] }
 	| { step: 'mapping'; staged: StagedFile; columns: MappingRow[]; sample: string[][] }
@@ -30,6 +45,7 @@ export type WizardState =
 			columns: MappingRow[];
 			sample: string[][];
 			keep: boolean;
+			lightCurves: LightCurveChoice | null;
 			message: string;
 			issues: TableIssue[];
 	  }
@@ -38,6 +54,7 @@ export type WizardState =
 			staged: StagedFile;
 			columns: MappingRow[];
 			keep: boolean;
+			lightCurves: LightCurvePreview | null;
 			mapping: string;
 			fields: MappedColumn[];
 			rowCount: number;

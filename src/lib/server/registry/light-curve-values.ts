@@ -64,3 +64,44 @@ export function recordValueSources(em: EntityManager, revision: CalibratorRevisi
 		});
 	}
 }
+
+/** For each revision of a set that took values from light curves: how many, and from how many uploads. */
+export async function lightCurveValueCounts(em: EntityManager, calibratorSetId: string) {
+	const rows = (await em.getConnection().execute(
+		`select r.number, count(*)::int as value_count, count(distinct lc.upload_id)::int as upload_count
+		from app_calibrator_value_source vs
+		join app_calibrator_revision r on r.id = vs.revision_id
+		join app_light_curve_result lc on lc.id = vs.light_curve_result_id
+		where r.calibrator_set_id = ?
+		group by r.number`,
+		[calibratorSetId]
+	)) as { number: number; value_count: number; upload_count: number }[];
+	return new Map(rows.map((row) => [row.number, { values: row.value_count, uploads: row.upload_count }]));
+}
+
+/** Calibrator revisions that took values from an upload's analyses, newest first. */
+export async function revisionsUsingUpload(em: EntityManager, uploadId: string) {
+	return (await em.getConnection().execute(
+		`select s.slug, r.number, count(*)::int as value_count
+		from app_calibrator_value_source vs
+		join app_light_curve_result lc on lc.id = vs.light_curve_result_id
+		join app_calibrator_revision r on r.id = vs.revision_id
+		join app_calibrator_set s on s.id = r.calibrator_set_id
+		where lc.upload_id = ?
+		group by s.slug, r.number, r.created_at
+		order by r.created_at desc`,
+		[uploadId]
+	)) as { slug: string; number: number; value_count: number }[];
+}
+
+/** Sets whose revisions the person may upload (member of the owning group), for "use these values in…". */
+export async function setsOpenToUploads(em: EntityManager, actor: Actor) {
+	return (await em.getConnection().execute(
+		`select s.slug, s.title
+		from app_calibrator_set s
+		where ? or exists (select 1 from app_group_membership m where m.group_id = s.group_id and m.user_id = ?)
+		order by s.title
+		limit 200`,
+		[actor.roles.includes('admin'), actor.id]
+	)) as { slug: string; title: string }[];
+}

@@ -1,6 +1,7 @@
 import { error } from '@sveltejs/kit';
 import { diffRevisions, listRevisions } from '$lib/server/registry/calibrator-sets';
 import { orPageError } from '$lib/server/calibrator-pages/page-errors';
+import { lightCurveValueCounts } from '$lib/server/registry/light-curve-values';
 import { revisionDiffToWire } from '$lib/server/registry/wire';
 import type { PageServerLoad } from './$types';
 
@@ -13,6 +14,7 @@ export const load: PageServerLoad = async ({ locals, params, url }) =>
 		const latest = numbers.at(-1) ?? null;
 		const from = revisionNumber(url.searchParams.get('from')) ?? (numbers.length > 1 ? numbers.at(-2)! : null);
 		const to = revisionNumber(url.searchParams.get('to')) ?? latest;
+		const fromLightCurves = await lightCurveValueCounts(locals.em, set.id);
 		let diff = null;
 		if (url.searchParams.has('from') || url.searchParams.has('to')) {
 			if (from === null || to === null || !numbers.includes(from) || !numbers.includes(to))
@@ -38,7 +40,8 @@ export const load: PageServerLoad = async ({ locals, params, url }) =>
 					sourceName: revision.sourceName,
 					sourceBytes: revision.sourceBytes,
 					note: revision.note,
-					createdAt: revision.createdAt.toISOString()
+					createdAt: revision.createdAt.toISOString(),
+					fromLightCurves: fromLightCurves.get(revision.number) ?? null
 				}))
 				.reverse(),
 			choice: { from, to },

@@ -2,8 +2,10 @@ import { fail, redirect } from '@sveltejs/kit';
 import Papa from 'papaparse';
 import {
 	diffCalibratorRevisions,
+	LIGHT_CURVE_FILLS,
 	type CanonicalRow,
 	type ColumnMapping,
+	type LightCurveFill,
 	type TableIssue
 } from '$lib/calibration/index';
 import {
@@ -12,6 +14,7 @@ import {
 	suggestedField,
 	type MappingRow
 } from '$lib/components/calibrators/column-mapping';
+import type { LightCurveChoice } from '$lib/components/calibrators/upload-wizard';
 import { requireRole } from '$lib/server/auth/guards';
 import { orPageError } from '$lib/server/calibrator-pages/page-errors';
 import {
@@ -22,16 +25,18 @@ import {
 	uploadMediaType
 } from '$lib/server/calibrator-pages/staged-uploads';
 import { belongsTo } from '$lib/server/registry/actor';
+import { listUploads } from '$lib/server/light-curves/uploads';
 import {
-	checkUploadTable,
 	findCalibratorSet,
 	findRevision,
 	listRevisions,
+	prepareRevisionTable,
 	revisionRows,
-	uploadRevision
+	uploadRevision,
+	type PreparedRevisionTable
 } from '$lib/server/registry/calibrator-sets';
 import { RegistryError } from '$lib/server/registry/errors';
-import { actorOf } from '$lib/server/registry/http';
+import { actorOf, UUID } from '$lib/server/registry/http';
 import { ColumnMappingSchema } from '$lib/server/registry/schemas';
 import { decodeUtf8 } from '$lib/server/registry/upload-checks';
 import { getObjectStorage } from '$lib/server/storage/app-storage';
@@ -41,12 +46,19 @@ import type { Actions, PageServerLoad } from './$types';
  * The upload wizard: file → column mapping and units → validation report → preview → commit. Each
  * step is a form post; the file waits in staging storage (see staged-uploads.ts) until commit.
  */
-export const load: PageServerLoad = async ({ locals, params }) => {
+export const load: PageServerLoad = async ({ locals, params, url }) => {
 	requireRole('curator');
 	return orPageError(async () => {
 		const { set, revisions } = await listRevisions(locals.em, params.slug);
 		const limits = uploadLimits();
+		const analysed = (await listUploads(locals.em, actorOf(locals))).filter((upload) => upload.state === 'succeeded');
+		const asked = url.searchParams.get('light_curves');
 		return {
+			lightCurveUploads: analysed.map((upload) => ({
+				id: upload.id,
+				label: `${upload.source_name} · ${upload.star_count} star${upload.star_count === 1 ? '' : 's'} · ${upload.created_at.slice(0, 10)}`
+			})),
+			chosenLightCurves: asked && analysed.some((upload) => upload.id === asked) ? asked : null,
 			set: { slug: set.slug, title: set.title, group: set.group.slug, licence: set.licence },
 			latest: revisions.at(-1) ? { number: revisions.at(-1)!.number, rows: revisions.at(-1)!.rowCount } : null,
 			member: await belongsTo(locals.em, actorOf(locals), set.group.id),
@@ -68,6 +80,24 @@ function stagedFrom(form: FormData): Staged {
 		name: String(form.get('name') ?? 'upload.csv').slice(0, 200),
 		mediaType: String(form.get('mediaType') ?? ''),
 		bytes: Number(form.get('bytes') ?? 0)
+	};
+}
+
+/** The light-curve upload and fill mode the form asks for, or null for none. */
+function lightCurveChoiceFrom(form: FormData): LightCurveChoice | null {
+	const upload = String(form.get('lightCurves') ?? '');
+	if (!UUID.test(upload)) return null;
+	const fill = String(form.get('lightCurveFill') ?? 'blank');
+	return { upload, fill: (LIGHT_CURVE_FILLS as readonly string[]).includes(fill) ? (fill as LightCurveFill) : 'blank' };
+}
+
+function lightCurvePreview(choice: LightCurveChoice | null, table: PreparedRevisionTable) {
+	if (!choice) return null;
+	return {
+		choice,
+		cells: table.valueSources.map((source) => `${source.star}\u0000${source.field}`),
+		valueCount: table.valueSources.length,
+		notices: table.lightCurveNotices
 	};
 }
 
@@ -114,6 +144,15 @@ function summarise(rows: CanonicalRow[]) {
 	};
 }
 
+/** The first rows, with the rows that took light-curve values first so the preview shows some of them. */
+function previewRows(table: PreparedRevisionTable, count = 25) {
+	const sourced = new Set(table.valueSources.map((source) => source.star));
+	return [
+		...table.rows.filter((row) => sourced.has(row.star)),
+		...table.rows.filter((row) => !sourced.has(row.star))
+	].slice(0, count);
+}
+
 export const actions: Actions = {
 	inspect: async ({ request, locals, params }) => {
 		const user = requireRole('curator');
@@ -154,18 +193,36 @@ export const actions: Actions = {
 			const columns = rowsFromForm(headers, form);
 			const mapping = mappingFromRows(columns);
 			const keep = form.get('keepNonPositiveParallax') === 'on';
+			const lightCurves = lightCurveChoiceFrom(form);
 			let table;
 			try {
-				({ table } = checkUploadTable(
-					{ bytes, mediaType: staged.mediaType, mapping, keepNonPositiveParallax: keep },
+				table = await prepareRevisionTable(
+					locals.em,
+					actorOf(locals),
+					{
+						bytes,
+						mediaType: staged.mediaType,
+						mapping,
+						keepNonPositiveParallax: keep,
+						lightCurves: lightCurves ?? undefined
+					},
 					uploadLimits()
-				));
+				);
 			} catch (cause) {
 				if (!(cause instanceof RegistryError)) throw cause;
 				const issues = (cause.extra.issues as TableIssue[] | undefined) ?? [
 					{ line: null, column: null, value: null, reason: cause.message }
 				];
-				return fail(422, { step: 'report' as const, staged, columns, sample, keep, message: cause.message, issues });
+				return fail(422, {
+					step: 'report' as const,
+					staged,
+					columns,
+					sample,
+					keep,
+					lightCurves,
+					message: cause.message,
+					issues
+				});
 			}
 			const { revisions } = await listRevisions(locals.em, set.slug);
 			const previous = revisions.at(-1) ?? null;
@@ -176,10 +233,11 @@ export const actions: Actions = {
 				staged,
 				columns,
 				keep,
+				lightCurves: lightCurvePreview(lightCurves, table),
 				mapping: JSON.stringify(mapping),
 				fields: table.columns,
 				rowCount: table.rows.length,
-				rows: table.rows.slice(0, 25),
+				rows: previewRows(table),
 				summary: summarise(table.rows),
 				previous: previous?.number ?? null,
 				changes: {
@@ -218,7 +276,8 @@ export const actions: Actions = {
 					fileName: staged.name,
 					mapping,
 					note: String(form.get('note') ?? '').slice(0, 2000),
-					keepNonPositiveParallax: form.get('keepNonPositiveParallax') === 'on'
+					keepNonPositiveParallax: form.get('keepNonPositiveParallax') === 'on',
+					lightCurves: lightCurveChoiceFrom(form) ?? undefined
 				},
 				uploadLimits()
 			);
