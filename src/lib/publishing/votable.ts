@@ -135,7 +135,12 @@ export function calibratorRevisionToVoTable(content: CalibratorRevisionContent, 
 const SOURCE_FIELDS: { name: string; datatype: 'char' | 'double'; ucd: string; description: string }[] = [
 	{ name: 'star', datatype: 'char', ucd: 'meta.id', description: 'Star name, as in the calibrators table' },
 	{ name: 'field', datatype: 'char', ucd: 'meta.code', description: 'Column of the calibrators table' },
-	{ name: 'value', datatype: 'double', ucd: 'meta.number', description: 'The value taken (canonical unit of the column)' },
+	{
+		name: 'value',
+		datatype: 'double',
+		ucd: 'meta.number',
+		description: 'The value taken (canonical unit of the column)'
+	},
 	{ name: 'replaced', datatype: 'char', ucd: 'meta.note', description: 'What the uploaded table held in that cell' },
 	{ name: 'analysis', datatype: 'char', ucd: 'meta.id', description: 'Light-curve analysis (one star in one band)' },
 	{ name: 'upload', datatype: 'char', ucd: 'meta.id', description: 'Light-curve upload of the analysis' },
