@@ -7,7 +7,14 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import { expect, test, type APIRequestContext, type APIResponse } from '@playwright/test';
 import { fieldDefinition, syntheticCalibrators, verifyDigest } from '../../src/lib/calibration/index';
 import { contentDigest } from '../../src/lib/publishing/content-digest';
-import { createBearerToken, createGroupRow, createPerson, openOrm, uniqueSlug } from './support/accounts';
+import {
+	createBearerToken,
+	createGroupRow,
+	createPerson,
+	createSessionCookie,
+	openOrm,
+	uniqueSlug
+} from './support/accounts';
 import { expectMatchesOpenApi } from './support/openapi-contract';
 
 /**
@@ -37,6 +44,9 @@ let memberToken: string;
 let memberTokenWithoutScope: string;
 /** Not in the group, though the token has read:private. */
 let outsiderToken: string;
+/** A curator of another group: may fit and upload, but not to this group's private set. */
+let outsiderCuratorId: string;
+let outsiderCuratorToken: string;
 let publicSet: string;
 let privateSet: string;
 let publicRelation: string;
@@ -155,6 +165,9 @@ test.beforeAll(async () => {
 	memberTokenWithoutScope = await createBearerToken(orm, member.id, []);
 	const outsider = await createPerson(orm, { label: 'export outsider', roles: ['reader'] });
 	outsiderToken = await createBearerToken(orm, outsider.id, ['read:private']);
+	const outsiderCurator = await createPerson(orm, { label: 'export outside curator', roles: ['reader', 'curator'] });
+	outsiderCuratorId = outsiderCurator.id;
+	outsiderCuratorToken = await createBearerToken(orm, outsiderCurator.id, ['write', 'read:private']);
 
 	publicSet = await newSet('public', 2);
 	privateSet = await newSet('group', 1);
@@ -314,6 +327,56 @@ test('a private set is invisible without a member’s read:private token, everyw
 	const detail = await request.get(`/api/v1/calibrator-sets/${privateSet}`, { headers: bearer(memberToken) });
 	await expectMatchesOpenApi(request, detail, SET);
 	expect((await detail.json()).visibility).toBe('group');
+});
+
+test('a private set stays hidden from other groups in pages, fits, uploads, digest lookups and star searches', async ({
+	request,
+	page,
+	baseURL
+}) => {
+	const own = await (
+		await request.get(`/api/v1/calibrator-sets/${privateSet}/revisions/1?format=json`, { headers: bearer(memberToken) })
+	).json();
+	const outsider = bearer(outsiderCuratorToken);
+	const fit = await request.post('/api/v1/fits', {
+		headers: outsider,
+		data: { calibrator_set: privateSet, revision: 1, ...FIT }
+	});
+	expect(fit.status(), await fit.text()).toBe(404);
+	const upload = await request.post(`/api/v1/calibrator-sets/${privateSet}/revisions?name=x.csv`, {
+		headers: { ...outsider, 'content-type': 'text/csv' },
+		data: calibratorCsv(9)
+	});
+	expect(upload.status()).toBe(404);
+	expect(await upload.text()).not.toContain(group);
+	const lookup = await request.get(`/api/v1/digests/${own.digest}`, { headers: outsider });
+	expect(lookup.status()).toBe(404);
+	expect((await request.get(`/api/v1/digests/${own.digest}`, { headers: bearer(memberToken) })).status()).toBe(200);
+
+	const star = own.content.rows[0].star as string;
+	const search = async (headers: Record<string, string>) => {
+		const response = await request.get(`/api/v1/stars?q=${encodeURIComponent(star)}`, { headers });
+		expect(response.status()).toBe(200);
+		return ((await response.json()).items as { calibrator_set: string }[]).map((item) => item.calibrator_set);
+	};
+	expect(await search(outsider)).not.toContain(privateSet);
+	expect(await search(bearer(memberToken))).toContain(privateSet);
+
+	// The same in the pages, for a signed-in curator of another group.
+	await page
+		.context()
+		.addCookies([
+			{ name: 'candlebook_session', value: await createSessionCookie(orm, outsiderCuratorId), url: baseURL! }
+		]);
+	for (const path of [`/calibrator-sets/${privateSet}`, `/calibrator-sets/${privateSet}/upload`]) {
+		const response = await page.goto(path);
+		expect(response?.status(), path).toBe(404);
+	}
+	await page.goto('/calibrator-sets');
+	await expect(page.getByRole('link', { name: /Invented public host Cepheids/ }).first()).toBeVisible();
+	expect(await page.content()).not.toContain(privateSet);
+	await page.goto(`/relations/${publicRelation}/refit`);
+	expect(await page.content()).not.toContain(privateSet);
 });
 
 test('astropy reads the VOTable and the CSV over HTTP with exactly the JSON export’s numbers; xmllint validates the VOTable', async ({

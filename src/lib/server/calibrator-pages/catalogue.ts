@@ -3,6 +3,8 @@ import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { CalibratorSet } from '../entities/calibrator-set.entity';
 import { Group } from '../entities/index';
 import { groupsOf } from '../accounts/group-service';
+import type { Actor } from '../registry/actor';
+import { visibleSetsFilter } from '../registry/calibrator-set-reads';
 
 /** The calibrator-set list: each set with its revision count and newest digest. */
 export interface CalibratorSetSummary {
@@ -16,8 +18,8 @@ export interface CalibratorSetSummary {
 	latestAt: string | null;
 }
 
-export async function listCalibratorSets(em: EntityManager): Promise<CalibratorSetSummary[]> {
-	const sets = await em.find(CalibratorSet, {}, { populate: ['group'], orderBy: { title: 'asc' }, limit: 500 });
+export async function listCalibratorSets(em: EntityManager, reader: Actor | null): Promise<CalibratorSetSummary[]> {
+	const sets = await em.find(CalibratorSet, await visibleSetsFilter(em, reader), { populate: ['group'], orderBy: { title: 'asc' }, limit: 500 });
 	if (sets.length === 0) return [];
 	const revisions = await em.find(
 		CalibratorRevision,
@@ -41,10 +43,10 @@ export async function listCalibratorSets(em: EntityManager): Promise<CalibratorS
 }
 
 /** Sets with at least one revision, for choosing what to fit. */
-export async function fittableRevisions(em: EntityManager) {
+export async function fittableRevisions(em: EntityManager, reader: Actor | null) {
 	const revisions = await em.find(
 		CalibratorRevision,
-		{},
+		{ calibratorSet: await visibleSetsFilter(em, reader) },
 		{
 			populate: ['calibratorSet'],
 			fields: ['number', 'digest', 'rowCount', 'calibratorSet.slug', 'calibratorSet.title'],

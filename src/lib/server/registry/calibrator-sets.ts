@@ -206,8 +206,11 @@ export async function storeRevision(
 	limits: UploadLimits = DEFAULT_UPLOAD_LIMITS
 ) {
 	const set = await findCalibratorSet(em, slug);
-	if (!(await belongsTo(em, actor, set.group.id)))
+	if (!(await belongsTo(em, actor, set.group.id))) {
+		// A private set's name is not confirmed to those who may not see it.
+		if (set.visibility !== 'public') throw notFound(`calibrator set called ${slug}`);
 		throw forbidden(`Only members of ${set.group.slug} may upload revisions of ${set.slug}.`);
+	}
 	const table = await prepareRevisionTable(em, actor, input, limits);
 	const { mediaType } = table;
 

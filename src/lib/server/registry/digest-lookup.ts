@@ -2,6 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { RelationVersion } from '../entities/relation-version.entity';
 import type { Actor } from './actor';
+import { canSeeCalibratorSet } from './calibrator-set-reads';
 import { notFound } from './errors';
 import { pinHref } from './read-wire';
 import { findVersion } from './versions';
@@ -19,7 +20,7 @@ export const calibratorRevisionHref = (slug: string, revision: number) =>
 
 /**
  * Relation versions first (their digests are unique); a version the caller may not see answers 404
- * like an unknown digest. Calibrator sets are public, so their revisions are.
+ * like an unknown digest, and so does a revision of a set private to a group the caller is not in.
  */
 export async function findByDigest(em: EntityManager, actor: Actor | null, digest: string): Promise<DigestTarget> {
 	const version = await em.findOne(
@@ -38,9 +39,9 @@ export async function findByDigest(em: EntityManager, actor: Actor | null, diges
 	const revision = await em.findOne(
 		CalibratorRevision,
 		{ digest },
-		{ populate: ['calibratorSet'], fields: ['number', 'calibratorSet.slug'], orderBy: { createdAt: 'asc' } }
+		{ populate: ['calibratorSet', 'calibratorSet.group'], orderBy: { createdAt: 'asc' }, exclude: ['content'] }
 	);
-	if (revision) {
+	if (revision && (await canSeeCalibratorSet(em, actor, revision.calibratorSet))) {
 		const slug = revision.calibratorSet.slug;
 		return {
 			kind: 'calibrator_revision',

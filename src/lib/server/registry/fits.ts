@@ -9,6 +9,7 @@ import {
 import { AnalysisJob, type AnalysisJobEntity } from '../entities/analysis-job.entity';
 import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { isAdmin, type Actor } from './actor';
+import { canSeeCalibratorSet } from './calibrator-set-reads';
 import { findRevision, revisionRows } from './calibrator-sets';
 import { notFound } from './errors';
 import type { FitRequest } from './schemas';
@@ -85,7 +86,9 @@ export async function requestFit(
 	queue: FitQueue | null,
 	thresholds: BackgroundThresholds = DEFAULT_BACKGROUND_THRESHOLDS
 ): Promise<FitOutcome> {
-	const { revision } = await findRevision(em, request.calibrator_set, request.revision);
+	const { set, revision } = await findRevision(em, request.calibrator_set, request.revision);
+	// A set private to its group is fitted only by those who may see it; others get the same 404.
+	if (!(await canSeeCalibratorSet(em, actor, set))) throw notFound(`calibrator set called ${request.calibrator_set}`);
 	const background = queue !== null && runsInBackground(request, revision.rowCount, thresholds);
 	const input: FitInput = { request, calibratorRevisionId: revision.id };
 	const job = em.create(AnalysisJob, {

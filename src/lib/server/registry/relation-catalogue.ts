@@ -53,11 +53,14 @@ export interface CataloguePage {
 export const VISIBLE_VERSION = `(l.embargo_until is null or l.released_at is not null or l.embargo_until <= now() or viewer.member)`;
 
 /** Admins, and members of the owning group, see its private relations and embargoed versions. */
-export const VIEWER_LATERAL = `cross join lateral (
+/** `viewer.member`: the caller is an admin or in the group of `groupColumn` (parameters: viewerParams). */
+export const viewerLateral = (groupColumn: string) => `cross join lateral (
 	select (cast(? as boolean) or exists (
-		select 1 from app_group_membership m where m.group_id = r.group_id and m.user_id = cast(? as uuid)
+		select 1 from app_group_membership m where m.group_id = ${groupColumn} and m.user_id = cast(? as uuid)
 	)) as member
 ) viewer`;
+
+export const VIEWER_LATERAL = viewerLateral('r.group_id');
 
 export const viewerParams = (viewer: Viewer) => [viewer.admin, viewer.userId];
 

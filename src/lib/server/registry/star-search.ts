@@ -2,7 +2,7 @@ import type { EntityManager } from '@mikro-orm/postgresql';
 import type { Actor } from './actor';
 import { calibratorRevisionHref } from './digest-lookup';
 import { pinHref } from './read-wire';
-import { VIEWER_LATERAL, VISIBLE_VERSION, viewerParams } from './relation-catalogue';
+import { VIEWER_LATERAL, VISIBLE_VERSION, viewerLateral, viewerParams } from './relation-catalogue';
 import { viewerOf } from './version-standing';
 
 /**
@@ -80,7 +80,7 @@ export async function findStar(
 	query: { q: string; limit: number; after: [string, number] | null }
 ): Promise<StarPage> {
 	const connection = em.getConnection();
-	const params: unknown[] = [query.q, query.q];
+	const params: unknown[] = [...viewerParams(viewerOf(actor)), query.q, query.q];
 	let keyset = '';
 	if (query.after) {
 		keyset = 'and (s.slug, cr.number) > (?, ?)';
@@ -93,7 +93,9 @@ export async function findStar(
 		from app_calibrator_revision cr
 		join app_calibrator_set s on s.id = cr.calibrator_set_id
 		cross join lateral jsonb_array_elements(cr.content->'rows') as item
-		where (lower(item->>'star') = lower(?) or lower(item->'values'->>'cross_id') = lower(?)) ${keyset}
+		${viewerLateral('s.group_id')}
+		where (s.visibility = 'public' or viewer.member)
+			and (lower(item->>'star') = lower(?) or lower(item->'values'->>'cross_id') = lower(?)) ${keyset}
 		order by s.slug, cr.number, item->>'star'
 		limit ?`,
 		params

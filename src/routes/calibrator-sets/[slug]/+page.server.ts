@@ -1,6 +1,8 @@
 import { error } from '@sveltejs/kit';
 import { diffRevisions, listRevisions } from '$lib/server/registry/calibrator-sets';
 import { orPageError } from '$lib/server/calibrator-pages/page-errors';
+import { findVisibleCalibratorSet } from '$lib/server/registry/calibrator-set-reads';
+import { readerOf } from '$lib/server/registry/http';
 import { lightCurveValueCounts } from '$lib/server/registry/light-curve-values';
 import { revisionDiffToWire } from '$lib/server/registry/wire';
 import type { PageServerLoad } from './$types';
@@ -9,6 +11,8 @@ const revisionNumber = (raw: string | null) => (raw && /^[1-9]\d{0,8}$/.test(raw
 
 export const load: PageServerLoad = async ({ locals, params, url }) =>
 	orPageError(async () => {
+		// A set private to its group is a 404 to everyone else, like its API reads.
+		await findVisibleCalibratorSet(locals.em, readerOf(locals), params.slug);
 		const { set, revisions } = await listRevisions(locals.em, params.slug);
 		const numbers = revisions.map((revision) => revision.number);
 		const latest = numbers.at(-1) ?? null;

@@ -26,8 +26,8 @@ import {
 } from '$lib/server/calibrator-pages/staged-uploads';
 import { belongsTo } from '$lib/server/registry/actor';
 import { listUploads } from '$lib/server/light-curves/uploads';
+import { findVisibleCalibratorSet } from '$lib/server/registry/calibrator-set-reads';
 import {
-	findCalibratorSet,
 	findRevision,
 	listRevisions,
 	prepareRevisionTable,
@@ -49,6 +49,7 @@ import type { Actions, PageServerLoad } from './$types';
 export const load: PageServerLoad = async ({ locals, params, url }) => {
 	requireRole('curator');
 	return orPageError(async () => {
+		await findVisibleCalibratorSet(locals.em, actorOf(locals), params.slug);
 		const { set, revisions } = await listRevisions(locals.em, params.slug);
 		const limits = uploadLimits();
 		const analysed = (await listUploads(locals.em, actorOf(locals))).filter((upload) => upload.state === 'succeeded');
@@ -175,7 +176,7 @@ export const actions: Actions = {
 		if (headers.length > limits.maxColumns)
 			return fail(422, { step: 'file' as const, message: `The file has more than ${limits.maxColumns} columns.` });
 		return orPageError(async () => {
-			await findCalibratorSet(locals.em, params.slug);
+			await findVisibleCalibratorSet(locals.em, actorOf(locals), params.slug);
 			const sha256 = await stageUpload(user.id, bytes, mediaType);
 			const staged: Staged = { sha256, name: file.name.slice(0, 200), mediaType, bytes: bytes.byteLength };
 			return { step: 'mapping' as const, staged, columns: columnsFor(headers, null), sample };
@@ -187,7 +188,7 @@ export const actions: Actions = {
 		const form = await request.formData();
 		const staged = stagedFrom(form);
 		return orPageError(async () => {
-			const set = await findCalibratorSet(locals.em, params.slug);
+			const set = await findVisibleCalibratorSet(locals.em, actorOf(locals), params.slug);
 			const { bytes, text } = await stagedText(user.id, staged);
 			const { headers, sample } = glance(text);
 			const columns = rowsFromForm(headers, form);

@@ -42,7 +42,7 @@ export const load: PageServerLoad = async ({ locals, params, url }) => {
 		const actor = actorOf(locals);
 		const relation = await findVisibleRelation(locals.em, actor, params.slug);
 		const anchor = anchorOf(relation.anchorType);
-		const revisions = await fittableRevisions(locals.em);
+		const revisions = await fittableRevisions(locals.em, actor);
 		let proposal = null;
 		let fit = null;
 		const proposalId = url.searchParams.get('proposal');
