@@ -87,11 +87,25 @@ describe('raw photometry for the light-curve analysis', () => {
 		expect(located.other).toEqual(['max_period_days: must be greater than min_period_days']);
 	});
 
-	test('the analysis fills id, period and intensity mean; the host reader then asks for the missing mean_mag_err', () => {
-		const csv = hostCsvFromAnalysis([{ id: 'A', period_days: 12.3, mean_mag_intensity: 24.81 }]);
+	test('the analysis fills id, period, intensity mean and its error, which the host reader accepts as written', () => {
+		const csv = hostCsvFromAnalysis([
+			{ id: 'A', period_days: 12.345678901234567, mean_mag_intensity: 24.81, mean_mag_intensity_err: 0.0031 }
+		]);
 		const read = parseHostCsv(csv);
-		expect(read.ok).toBe(false);
-		if (read.ok) return;
-		expect(read.errors).toEqual([{ line: 2, column: 'mean_mag_err', value: '', message: 'is required' }]);
+		expect(read).toEqual({
+			ok: true,
+			stars: [
+				{
+					id: 'A',
+					period_days: 12.345678901234567,
+					mean_mag: 24.81,
+					mean_mag_err: 0.0031,
+					ebv: null,
+					ebv_err: null,
+					feh: null,
+					feh_err: null
+				}
+			]
+		});
 	});
 });

@@ -157,14 +157,24 @@ export interface AnalysedStar {
 	id: string;
 	period_days: number;
 	mean_mag_intensity: number;
+	mean_mag_intensity_err: number;
 }
 
 /**
  * Host-table CSV from the analysis: the period and the intensity-mean magnitude (the mean a PL
- * relation expects). The analysis gives no error for the mean, so mean_mag_err is left for the
- * observer to fill in, and the worksheet refuses to run until they do.
+ * relation expects) with the error of that mean from the Fourier fit. That error is photometric noise
+ * only, so an observer whose zero point is less certain raises it before computing distances.
  */
 export function hostCsvFromAnalysis(results: readonly AnalysedStar[]): string {
-	const rows = results.map((star) => [star.id, star.period_days, star.mean_mag_intensity, '', '', '', '', '']);
+	const rows = results.map((star) => [
+		star.id,
+		star.period_days,
+		star.mean_mag_intensity,
+		star.mean_mag_intensity_err,
+		'',
+		'',
+		'',
+		''
+	]);
 	return Papa.unparse({ fields: [...HOST_COLUMNS], data: rows }, { newline: '\n' }) + '\n';
 }
