@@ -1,18 +1,18 @@
 /**
  * A host galaxy's Cepheids in one pass over typed arrays: per-star absolute magnitude, μ0 and distance
  * (from `applyRelationColumnar`), per-star warnings, and the σ-clipped inverse-variance mean of
- * `combineHostDistance` — the same formulas, without an object per star, for batches of 10⁵ stars.
+ * `combineHostColumns`, the loop `combineHostDistance` runs too: the same formulas, without an
+ * object per star, for batches of 10⁵ stars.
  *
  *   M_i = a + b·(log P_i − p0) + γ·([Fe/H]_i − f0),  σ_M,i = √(gᵢᵀΣgᵢ)
  *   w_i = 1/(σ_phot² + σ_red² + σ_int² + (γσ_[Fe/H])²),  μ_host = Σw_i μ0,i / Σw_i,  σ_stat = 1/√Σw_i
  *   σ_sys = √(gᵀΣg at the host's weighted mean log P and [Fe/H])
  */
-import { applyRelationColumnar, coefficientVariance, type StarColumns } from './apply';
+import { applyRelationColumnar, type StarColumns } from './apply';
 import { getBand } from './bands';
 import { bandExtinctionPerEbv } from './extinction';
 import { periodWarnings, POPULATIONS } from './populations';
-import type { HostDistanceOptions, HostRejectedStar, SystematicTerm } from './host-distance';
-import { measuredDistanceFromModulus } from './units';
+import { combineHostColumns, type HostCombination, type HostDistanceOptions } from './host-distance';
 import type { CalibrationWarning, CoefficientAxis, ExtinctionLawId, PopulationId, Relation } from './types';
 
 export interface HostBatchInput extends StarColumns {
@@ -38,17 +38,8 @@ export interface HostBatchResult {
 	rejectedMask: Uint8Array;
 	/** Per-star warnings; stars without any share one frozen empty array. */
 	starWarnings: readonly (readonly CalibrationWarning[])[];
-	combined: {
-		mu0: { value: number; statistical: number; systematic: number; total: number };
-		distanceMpc: { value: number; error: number };
-		nUsed: number;
-		rejected: HostRejectedStar[];
-		meanLogPeriod: number;
-		meanFeh: number | null;
-		systematicTerms: SystematicTerm[];
-		reducedChiSquare: number | null;
-		iterations: number;
-	};
+	/** The σ-clipped combination; its clipping warnings are among `warnings`. */
+	combined: Omit<HostCombination, 'rejectedMask' | 'warnings'>;
 	/** Warnings about the whole request (law mismatch, mixed populations, clipping). */
 	warnings: CalibrationWarning[];
 }
@@ -214,9 +205,16 @@ export function hostDistanceBatch(
 		});
 	}
 
-	const combined = combine(relation, ids, applied.mu0, randomVariance, logPeriod, fehUsed, options, warnings);
-	const rejectedMask = new Uint8Array(n);
-	for (const star of combined.rejectedIndexes) rejectedMask[star] = 1;
+	const {
+		rejectedMask,
+		warnings: clipping,
+		...combined
+	} = combineHostColumns(
+		relation,
+		{ ids, mu0: applied.mu0, variance: randomVariance, logPeriod, feh: fehUsed },
+		options
+	);
+	warnings.push(...clipping);
 	return {
 		logPeriod,
 		absMag,
@@ -227,130 +225,7 @@ export function hostDistanceBatch(
 		distanceMpcErr,
 		rejectedMask,
 		starWarnings,
-		combined: combined.result,
+		combined,
 		warnings
-	};
-}
-
-/** combineHostDistance over columns (same clipping loop, same sums). */
-function combine(
-	relation: Relation,
-	ids: readonly string[],
-	mu: Float64Array,
-	variance: Float64Array,
-	logPeriod: Float64Array,
-	feh: Float64Array,
-	options: HostDistanceOptions,
-	warnings: CalibrationWarning[]
-) {
-	const n = mu.length;
-	const clipSigma = options.clipSigma === undefined ? 3 : options.clipSigma;
-	const maxIterations = options.maxIterations ?? 10;
-	const minStars = Math.max(1, options.minStars ?? 2);
-	const sigma = new Float64Array(n);
-	const weight = new Float64Array(n);
-	for (let i = 0; i < n; i++) {
-		sigma[i] = Math.sqrt(variance[i]);
-		weight[i] = 1 / (sigma[i] * sigma[i]);
-	}
-	const meanOf = (keep: Uint8Array) => {
-		let sw = 0;
-		let swx = 0;
-		for (let i = 0; i < n; i++) {
-			if (!keep[i]) continue;
-			sw += weight[i];
-			swx += weight[i] * mu[i];
-		}
-		return swx / sw;
-	};
-	let keep = new Uint8Array(n).fill(1);
-	let mean = meanOf(keep);
-	let iterations = 0;
-	if (clipSigma !== null) {
-		const next = new Uint8Array(n);
-		for (; iterations < maxIterations; iterations++) {
-			let kept = 0;
-			let changed = false;
-			for (let i = 0; i < n; i++) {
-				const inside = Math.abs(mu[i] - mean) / sigma[i] <= clipSigma ? 1 : 0;
-				next[i] = inside;
-				kept += inside;
-				if (inside !== keep[i]) changed = true;
-			}
-			if (kept < minStars) {
-				warnings.push({
-					code: 'clipping_stopped',
-					message: `σ-clipping would leave fewer than ${minStars} stars; stopped`,
-					details: { kept, min_stars: minStars }
-				});
-				break;
-			}
-			if (!changed) break;
-			keep = Uint8Array.from(next);
-			mean = meanOf(keep);
-		}
-		if (iterations === maxIterations) {
-			warnings.push({
-				code: 'clipping_not_converged',
-				message: `σ-clipping did not settle within ${maxIterations} iterations`,
-				details: { max_iterations: maxIterations }
-			});
-		}
-	}
-
-	let sumW = 0;
-	let sumWLogP = 0;
-	let sumWFeh = 0;
-	let sumWFehWeight = 0;
-	let chi2 = 0;
-	let nUsed = 0;
-	const rejected: HostRejectedStar[] = [];
-	const rejectedIndexes: number[] = [];
-	for (let i = 0; i < n; i++) {
-		const residual = (mu[i] - mean) / sigma[i];
-		if (!keep[i]) {
-			rejected.push({ star: ids[i], reason: 'sigma_clip', standardizedResidual: residual });
-			rejectedIndexes.push(i);
-			continue;
-		}
-		nUsed++;
-		sumW += weight[i];
-		sumWLogP += weight[i] * logPeriod[i];
-		if (feh[i] === feh[i]) {
-			sumWFeh += weight[i] * feh[i];
-			sumWFehWeight += weight[i];
-		}
-		chi2 += residual * residual;
-	}
-	const meanLogPeriod = sumWLogP / sumW;
-	const hasGamma = relation.coefficients.metallicityTerm !== null;
-	const meanFeh = sumWFehWeight > 0 ? sumWFeh / sumWFehWeight : hasGamma ? relation.pivotFeh : null;
-	const coefficientTerm = Math.sqrt(
-		coefficientVariance(
-			relation,
-			meanLogPeriod - relation.pivotLogPeriod,
-			hasGamma && meanFeh !== null ? meanFeh - relation.pivotFeh : 0
-		)
-	);
-	const systematicTerms: SystematicTerm[] = [
-		{ name: 'relation_coefficients', error: coefficientTerm },
-		...(options.systematics ?? [])
-	];
-	const statistical = 1 / Math.sqrt(sumW);
-	const systematic = Math.sqrt(systematicTerms.reduce((sum, term) => sum + term.error ** 2, 0));
-	const total = Math.hypot(statistical, systematic);
-	return {
-		rejectedIndexes,
-		result: {
-			mu0: { value: mean, statistical, systematic, total },
-			distanceMpc: measuredDistanceFromModulus({ value: mean, error: total }, 'Mpc'),
-			nUsed,
-			rejected,
-			meanLogPeriod,
-			meanFeh,
-			systematicTerms,
-			reducedChiSquare: nUsed > 1 ? chi2 / (nUsed - 1) : null,
-			iterations
-		}
 	};
 }

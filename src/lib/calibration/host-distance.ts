@@ -60,6 +60,22 @@ function randomVariance(star: StarDistance): number {
 	return photometric ** 2 + reddening ** 2 + intrinsic ** 2 + metallicity ** 2;
 }
 
+/** One host's stars as columns: what the σ-clipped combination reads of each. */
+export interface HostColumns {
+	ids: readonly string[];
+	mu0: Float64Array;
+	/** Per-star random variance σ_i² (everything but the coefficient term), > 0. */
+	variance: Float64Array;
+	logPeriod: Float64Array;
+	/** [Fe/H] each star was taken at; NaN where it has none. */
+	feh: Float64Array;
+}
+
+export interface HostCombination extends Omit<HostDistance, 'used'> {
+	/** 1 for stars σ-clipped from the mean, by position. */
+	rejectedMask: Uint8Array;
+}
+
 function weightedMean(values: Float64Array, weights: Float64Array, keep: Uint8Array): number {
 	let sw = 0;
 	let swx = 0;
@@ -71,47 +87,41 @@ function weightedMean(values: Float64Array, weights: Float64Array, keep: Uint8Ar
 	return swx / sw;
 }
 
-/** Combines the Cepheids of one host (results of `applyRelation` with the same relation). */
-export function combineHostDistance(
+/**
+ * The σ-clipped inverse-variance combination over columns, the one loop behind `combineHostDistance`
+ * and the 10⁵-star batch. Inputs are taken as checked (finite μ0, positive variance, finite systematics).
+ */
+export function combineHostColumns(
 	relation: Relation,
-	stars: readonly StarDistance[],
+	columns: HostColumns,
 	options: HostDistanceOptions = {}
-): HostDistance {
+): HostCombination {
+	const { ids, mu0: mu, variance, logPeriod, feh } = columns;
+	const n = mu.length;
 	const clipSigma = options.clipSigma === undefined ? 3 : options.clipSigma;
 	const maxIterations = options.maxIterations ?? 10;
 	const minStars = Math.max(1, options.minStars ?? 2);
-	const systematics = [...(options.systematics ?? [])];
-	const issues: InputIssue[] = stars.flatMap((star): InputIssue[] =>
-		randomVariance(star) > 0 && Number.isFinite(star.mu0.value)
-			? []
-			: [{ star: star.id, field: 'mu0', message: 'needs a finite μ0 and a positive random error' }]
-	);
-	if (stars.length === 0) issues.push({ star: null, field: 'stars', message: 'no stars to combine' });
-	for (const term of systematics) {
-		if (!(term.error >= 0) || !Number.isFinite(term.error)) {
-			issues.push({ star: null, field: `systematics.${term.name}`, message: 'error must be finite and ≥ 0' });
-		}
+	const sigma = new Float64Array(n);
+	const weight = new Float64Array(n);
+	for (let i = 0; i < n; i++) {
+		sigma[i] = Math.sqrt(variance[i]);
+		weight[i] = 1 / (sigma[i] * sigma[i]);
 	}
-	if (issues.length > 0) throw new CalibrationInputError(issues);
-
-	const n = stars.length;
-	const mu = Float64Array.from(stars, (star) => star.mu0.value);
-	const sigma = Float64Array.from(stars, (star) => Math.sqrt(randomVariance(star)));
-	const weight = sigma.map((s) => 1 / (s * s));
 	let keep = new Uint8Array(n).fill(1);
 	let mean = weightedMean(mu, weight, keep);
 	let iterations = 0;
 	const warnings: CalibrationWarning[] = [];
 
 	if (clipSigma !== null) {
+		const next = new Uint8Array(n);
 		for (; iterations < maxIterations; iterations++) {
-			const next = new Uint8Array(n);
 			let kept = 0;
+			let changed = false;
 			for (let i = 0; i < n; i++) {
-				if (Math.abs(mu[i] - mean) / sigma[i] <= clipSigma) {
-					next[i] = 1;
-					kept++;
-				}
+				const inside = Math.abs(mu[i] - mean) / sigma[i] <= clipSigma ? 1 : 0;
+				next[i] = inside;
+				kept += inside;
+				if (inside !== keep[i]) changed = true;
 			}
 			if (kept < minStars) {
 				warnings.push({
@@ -121,8 +131,8 @@ export function combineHostDistance(
 				});
 				break;
 			}
-			if (next.every((value, i) => value === keep[i])) break;
-			keep = next;
+			if (!changed) break;
+			keep = Uint8Array.from(next);
 			mean = weightedMean(mu, weight, keep);
 		}
 		if (iterations === maxIterations) {
@@ -139,20 +149,21 @@ export function combineHostDistance(
 	let sumWFeh = 0;
 	let sumWFehWeight = 0;
 	let chi2 = 0;
-	const used: string[] = [];
+	let nUsed = 0;
 	const rejected: HostRejectedStar[] = [];
+	const rejectedMask = new Uint8Array(n);
 	for (let i = 0; i < n; i++) {
 		const residual = (mu[i] - mean) / sigma[i];
 		if (!keep[i]) {
-			rejected.push({ star: stars[i].id, reason: 'sigma_clip', standardizedResidual: residual });
+			rejected.push({ star: ids[i], reason: 'sigma_clip', standardizedResidual: residual });
+			rejectedMask[i] = 1;
 			continue;
 		}
-		used.push(stars[i].id);
+		nUsed++;
 		sumW += weight[i];
-		sumWLogP += weight[i] * stars[i].logPeriod;
-		const feh = stars[i].feh;
-		if (feh !== null) {
-			sumWFeh += weight[i] * feh;
+		sumWLogP += weight[i] * logPeriod[i];
+		if (feh[i] === feh[i]) {
+			sumWFeh += weight[i] * feh[i];
 			sumWFehWeight += weight[i];
 		}
 		chi2 += residual * residual;
@@ -167,22 +178,70 @@ export function combineHostDistance(
 			hasGamma && meanFeh !== null ? meanFeh - relation.pivotFeh : 0
 		)
 	);
-	const systematicTerms: SystematicTerm[] = [{ name: 'relation_coefficients', error: coefficientTerm }, ...systematics];
+	const systematicTerms: SystematicTerm[] = [
+		{ name: 'relation_coefficients', error: coefficientTerm },
+		...(options.systematics ?? [])
+	];
 	const statistical = 1 / Math.sqrt(sumW);
 	const systematic = Math.sqrt(systematicTerms.reduce((sum, term) => sum + term.error ** 2, 0));
 	const total = Math.hypot(statistical, systematic);
-	const nUsed = used.length;
 	return {
 		mu0: { value: mean, statistical, systematic, total },
 		distanceMpc: measuredDistanceFromModulus({ value: mean, error: total }, 'Mpc'),
 		nUsed,
-		used,
 		rejected,
+		rejectedMask,
 		meanLogPeriod,
 		meanFeh,
 		systematicTerms,
 		reducedChiSquare: nUsed > 1 ? chi2 / (nUsed - 1) : null,
 		iterations,
 		warnings
+	};
+}
+
+/** Combines the Cepheids of one host (results of `applyRelation` with the same relation). */
+export function combineHostDistance(
+	relation: Relation,
+	stars: readonly StarDistance[],
+	options: HostDistanceOptions = {}
+): HostDistance {
+	const issues: InputIssue[] = stars.flatMap((star): InputIssue[] =>
+		randomVariance(star) > 0 && Number.isFinite(star.mu0.value)
+			? []
+			: [{ star: star.id, field: 'mu0', message: 'needs a finite μ0 and a positive random error' }]
+	);
+	if (stars.length === 0) issues.push({ star: null, field: 'stars', message: 'no stars to combine' });
+	for (const term of options.systematics ?? []) {
+		if (!(term.error >= 0) || !Number.isFinite(term.error)) {
+			issues.push({ star: null, field: `systematics.${term.name}`, message: 'error must be finite and ≥ 0' });
+		}
+	}
+	if (issues.length > 0) throw new CalibrationInputError(issues);
+
+	const ids = stars.map((star) => star.id);
+	const combined = combineHostColumns(
+		relation,
+		{
+			ids,
+			mu0: Float64Array.from(stars, (star) => star.mu0.value),
+			variance: Float64Array.from(stars, randomVariance),
+			logPeriod: Float64Array.from(stars, (star) => star.logPeriod),
+			feh: Float64Array.from(stars, (star) => star.feh ?? Number.NaN)
+		},
+		options
+	);
+	return {
+		mu0: combined.mu0,
+		distanceMpc: combined.distanceMpc,
+		nUsed: combined.nUsed,
+		used: ids.filter((_, i) => !combined.rejectedMask[i]),
+		rejected: combined.rejected,
+		meanLogPeriod: combined.meanLogPeriod,
+		meanFeh: combined.meanFeh,
+		systematicTerms: combined.systematicTerms,
+		reducedChiSquare: combined.reducedChiSquare,
+		iterations: combined.iterations,
+		warnings: combined.warnings
 	};
 }

@@ -12,7 +12,9 @@ const LIGHT_CURVE_ANALYSIS = ACCESS_POLICY.some(
 
 export const load: PageServerLoad = async ({ locals }) => ({
 	choices: await currentPublicVersions(locals.em),
-	lightCurveAnalysis: LIGHT_CURVE_ANALYSIS
+	lightCurveAnalysis: LIGHT_CURVE_ANALYSIS,
+	// The analysis endpoint is for signed-in people; visitors are told so rather than shown a step that fails.
+	signedIn: locals.user !== null
 });
 
 /** Only what the page shows; the record for the export buttons is rebuilt in the page from these. */
