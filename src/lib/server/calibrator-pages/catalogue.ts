@@ -19,7 +19,11 @@ export interface CalibratorSetSummary {
 }
 
 export async function listCalibratorSets(em: EntityManager, reader: Actor | null): Promise<CalibratorSetSummary[]> {
-	const sets = await em.find(CalibratorSet, await visibleSetsFilter(em, reader), { populate: ['group'], orderBy: { title: 'asc' }, limit: 500 });
+	const sets = await em.find(CalibratorSet, await visibleSetsFilter(em, reader), {
+		populate: ['group'],
+		orderBy: { title: 'asc' },
+		limit: 500
+	});
 	if (sets.length === 0) return [];
 	const revisions = await em.find(
 		CalibratorRevision,

@@ -21,7 +21,10 @@ export async function findVisibleCalibratorSet(em: EntityManager, reader: Actor 
 	return set;
 }
 
-export async function visibleSetsFilter(em: EntityManager, reader: Actor | null): Promise<FilterQuery<CalibratorSetEntity>> {
+export async function visibleSetsFilter(
+	em: EntityManager,
+	reader: Actor | null
+): Promise<FilterQuery<CalibratorSetEntity>> {
 	if (!reader) return { visibility: 'public' };
 	if (isAdmin(reader)) return {};
 	const memberships = await em.find(GroupMembership, { user: reader.id }, { fields: ['group'] });
