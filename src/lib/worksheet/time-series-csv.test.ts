@@ -1,6 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import { parseHostCsv } from './host-csv';
-import { hostCsvFromAnalysis, parseTimeSeriesCsv, timeSeriesProblems } from './time-series-csv';
+import { bandCautions, hostCsvFromAnalysis, parseTimeSeriesCsv, timeSeriesProblems } from './time-series-csv';
 
 const HEADER = 'star,time,mag,err,band';
 /** Ten points of one star at times 1…10. */
@@ -107,5 +107,21 @@ describe('raw photometry for the light-curve analysis', () => {
 				}
 			]
 		});
+	});
+
+	test('a series in another band than the pinned relation is cautioned; no band or no known relation band is not', () => {
+		const series = [
+			{ id: 'KCS-1', band: 'Ic' },
+			{ id: 'KCS-2', band: 'V' },
+			{ id: 'KCS-3', band: null }
+		];
+		expect(bandCautions(series, 'Ic')).toEqual([
+			'KCS-2: observed in V, but the pinned relation is in Ic; its mean magnitude is not on the relation’s band.'
+		]);
+		expect(bandCautions(series, 'W_VI')).toEqual([
+			'KCS-1: observed in Ic, but the pinned relation is in W_VI; form the Wesenheit magnitude from both bands before applying it.',
+			'KCS-2: observed in V, but the pinned relation is in W_VI; form the Wesenheit magnitude from both bands before applying it.'
+		]);
+		expect(bandCautions(series, null)).toEqual([]);
 	});
 });

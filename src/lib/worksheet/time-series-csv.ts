@@ -178,3 +178,18 @@ export function hostCsvFromAnalysis(results: readonly AnalysedStar[]): string {
 	]);
 	return Papa.unparse({ fields: [...HOST_COLUMNS], data: rows }, { newline: '\n' }) + '\n';
 }
+
+/**
+ * Series observed in another band than the pinned relation's: their mean magnitudes do not belong on
+ * that relation (a Wesenheit relation needs the Wesenheit magnitude formed from both bands). Common
+ * practice; series without a band, or an unknown relation band, give no caution.
+ */
+export function bandCautions(series: readonly { id: string; band?: string | null }[], relationBand: string | null) {
+	if (!relationBand) return [];
+	const remedy = isSingleBandId(relationBand)
+		? 'its mean magnitude is not on the relation’s band'
+		: 'form the Wesenheit magnitude from both bands before applying it';
+	return series
+		.filter((one) => one.band && one.band !== relationBand)
+		.map((one) => `${one.id}: observed in ${one.band}, but the pinned relation is in ${relationBand}; ${remedy}.`);
+}
