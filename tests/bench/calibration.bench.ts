@@ -8,12 +8,19 @@
  *   seeded xoroshiro128+ generator;
  * - apply: one Math.log and one Math.exp per star over the same arrays — the two transcendental calls
  *   a distance needs (log P in, 10^(μ/5+1) out) in their fastest form; the ratio is the price of extinction, metallicity, the error budget and the
- *   validity flags.
+ *   validity flags;
+ * - light-curve values: reading the same table (parseCalibratorTable), which every upload pays anyway;
+ *   the ratio is what taking periods and means from analyses adds to an upload.
  */
 import { uniformFloat64 } from 'pure-rand/distribution/uniformFloat64';
 import { uniformInt } from 'pure-rand/distribution/uniformInt';
 import { xoroshiro128plus } from 'pure-rand/generator/xoroshiro128plus';
 import { applyRelationColumnar } from '../../src/lib/calibration/apply';
+import {
+	parseCalibratorTable,
+	takeLightCurveValues,
+	type LightCurveAnalysisValues
+} from '../../src/lib/calibration/calibrator-table/index';
 import { fitLinearRelation, type CalibratorPoint } from '../../src/lib/calibration/fit';
 import type { Relation } from '../../src/lib/calibration/types';
 
@@ -129,6 +136,34 @@ export function buildCases(): BenchCase[] {
 	}
 	const scratch = new Float64Array(n);
 
+	// An invented 20 000-row table whose first 500 stars have analyses in V and Ic, periods left empty.
+	const tableRows = 20_000;
+	const analysed = 500;
+	const tableText = [
+		'star,population,period_days,mag_V,parallax_mas,parallax_err_mas',
+		...Array.from(
+			{ length: tableRows },
+			(_, i) => `KCS-${i},classical_fundamental,${i < analysed ? '' : (3 + (i % 40)).toFixed(3)},14.5,0.3,0.02`
+		)
+	].join('\n');
+	const lightCurveTable = parseCalibratorTable(tableText, {}, undefined, { filledLater: ['period_days'] });
+	const analyses: LightCurveAnalysisValues[] = Array.from({ length: analysed }, (_, i) =>
+		['V', 'Ic'].map((band, b) => ({
+			result: `00000000-0000-4000-8000-${String(2 * i + b).padStart(12, '0')}`,
+			upload: '00000000-0000-4000-8000-000000000000',
+			sourceDigest: `sha256:${'0'.repeat(64)}`,
+			engineVersion: '1.0.0',
+			star: `KCS-${i}`,
+			band,
+			population: 'classical_fundamental',
+			periodDays: 3 + (i % 40),
+			periodErrDays: 1e-4 * (1 + b),
+			meanMagIntensity: 14.5,
+			meanMagIntensityErr: 0.003,
+			warnings: []
+		}))
+	).flat();
+
 	return [
 		{
 			name: 'WLS + 3σ clip, 10 000 calibrators',
@@ -170,6 +205,16 @@ export function buildCases(): BenchCase[] {
 			},
 			baselineLabel: 'Math.log + Math.exp per star, same arrays',
 			target: { description: '≥ 5 M stars/s', met: (ms) => n / (ms / 1000) >= 5e6 }
+		},
+		{
+			name: 'light-curve values into a 20 000-row table (1 000 analyses)',
+			items: tableRows,
+			itemLabel: 'rows',
+			repeats: 15,
+			run: () => takeLightCurveValues(lightCurveTable, analyses, 'blank'),
+			baseline: () => parseCalibratorTable(tableText, {}, undefined, { filledLater: ['period_days'] }),
+			baselineLabel: 'reading the same table (parseCalibratorTable)',
+			target: { description: '< 50 ms', met: (ms) => ms < 50 }
 		}
 	];
 }

@@ -174,6 +174,32 @@ test.describe('light curves into calibrator revisions', () => {
 				.map((source: { field: string }) => source.field)
 		).toEqual(['mag_Ic', 'mag_err_Ic']);
 
+		// Anyone who may read the revision can follow each source to its analysis, though the upload is private.
+		const followed = await request.get(`/api/v1/calibrator-sets/${slug}/revisions/1/light-curves`);
+		expect(followed.status()).toBe(200);
+		await expectMatchesOpenApi(request, followed, 'GET /api/v1/calibrator-sets/{slug}/revisions/{n}/light-curves');
+		const { analyses } = await followed.json();
+		const named = new Set(
+			content.value_sources.map((source: { light_curve: { result: string } }) => source.light_curve.result)
+		);
+		expect(new Set(analyses.map((analysis: { analysis_id: string }) => analysis.analysis_id))).toEqual(named);
+		for (const analysis of analyses) {
+			expect(`sha256:${analysis.upload.source.sha256}`).toBe(content.value_sources[0].light_curve.source_digest);
+			expect(analysis).toMatchObject(results.find((result) => result.analysis_id === analysis.analysis_id)!);
+			expect(analysis.fields.sort()).toEqual(
+				content.value_sources
+					.filter((source: { light_curve: { result: string } }) => source.light_curve.result === analysis.analysis_id)
+					.map((source: { field: string }) => source.field)
+					.sort()
+			);
+		}
+		expect(analyses.find((analysis: { id: string }) => analysis.id === 'KCS-LC-003').fields.sort()).toEqual([
+			'mag_Ic',
+			'mag_err_Ic'
+		]);
+		const anonymousUpload = await request.get(`/api/v1/light-curves/uploads/${uploadId}`);
+		expect(anonymousUpload.status()).toBe(401);
+
 		const votable = await request.get(`/api/v1/calibrator-sets/${slug}/revisions/1?format=votable`);
 		expect(votable.status()).toBe(200);
 		const xml = await votable.text();
@@ -243,6 +269,10 @@ test.describe('light curves into calibrator revisions', () => {
 
 		await expect(page).toHaveURL(new RegExp(`/calibrator-sets/${slug}\\?uploaded=1$`));
 		await expect(page.getByTestId('from-light-curves')).toContainText('14 values from light-curve analyses (1 upload)');
+		await expect(page.getByTestId('from-light-curves').getByRole('link', { name: 'the analyses' })).toHaveAttribute(
+			'href',
+			`/api/v1/calibrator-sets/${slug}/revisions/1/light-curves`
+		);
 
 		const json = await (await request.get(`/api/v1/calibrator-sets/${slug}/revisions/1?format=json`)).json();
 		expect(json.content.value_sources).toHaveLength(14);

@@ -101,11 +101,10 @@ export function takeLightCurveValues(
 	requiredFields: readonly string[] = ['period_days']
 ): LightCurveTake {
 	const columns = table.columns.map((column) => ({ ...column }));
-	const rows = table.rows.map((row) => ({ star: row.star, values: { ...row.values } }));
 	const sources: ValueSource[] = [];
 	const notices: LightCurveNotice[] = [];
 
-	const rowOf = matchRows(rows);
+	const rowOf = matchRows(table.rows);
 	const byRow = new Map<CanonicalRow, LightCurveAnalysisValues[]>();
 	for (const analysis of analyses) {
 		const row = rowOf(analysis.star);
@@ -116,14 +115,25 @@ export function takeLightCurveValues(
 		byRow.set(row, [...(byRow.get(row) ?? []), analysis]);
 	}
 
+	// Writes are collected first and every row is built once at the end with all its keys: adding keys
+	// to thousands of existing objects one by one costs far more than the rest of the work.
+	const writes = new Map<CanonicalRow, Record<string, CellValue>>();
+	const cell = (row: CanonicalRow, field: string): CellValue => {
+		const written = writes.get(row);
+		return written && field in written ? written[field] : (row.values[field] ?? null);
+	};
+	const write = (row: CanonicalRow, field: string, value: CellValue) => {
+		const written = writes.get(row) ?? {};
+		written[field] = value;
+		writes.set(row, written);
+	};
 	const ensureColumn = (field: string, unit: string) => {
-		if (columns.some((column) => column.field === field)) return;
-		columns.push({ field, source_column: LIGHT_CURVE_COLUMN, unit });
-		for (const row of rows) row.values[field] = null;
+		if (!columns.some((column) => column.field === field))
+			columns.push({ field, source_column: LIGHT_CURVE_COLUMN, unit });
 	};
 
 	const take = (row: CanonicalRow, pair: FieldPair, analysis: LightCurveAnalysisValues, unit: string) => {
-		if (fill === 'blank' && !isBlank(row.values[pair.value])) return;
+		if (fill === 'blank' && !isBlank(cell(row, pair.value))) return;
 		const values = pair.pick(analysis);
 		if (!Number.isFinite(values[0])) return;
 		ensureColumn(pair.value, unit);
@@ -131,14 +141,14 @@ export function takeLightCurveValues(
 		[pair.value, pair.error].forEach((field, i) => {
 			// An error the analysis could not estimate is written as missing, not as the table's old one.
 			if (!Number.isFinite(values[i])) {
-				row.values[field] = null;
+				write(row, field, null);
 				return;
 			}
 			sources.push({
 				star: row.star,
 				field,
 				value: values[i],
-				replaced: row.values[field] ?? null,
+				replaced: cell(row, field),
 				light_curve: {
 					result: analysis.result,
 					upload: analysis.upload,
@@ -148,7 +158,7 @@ export function takeLightCurveValues(
 					engine_version: analysis.engineVersion
 				}
 			});
-			row.values[field] = values[i];
+			write(row, field, values[i]);
 		});
 	};
 
@@ -182,6 +192,17 @@ export function takeLightCurveValues(
 			take(row, magnitudePair(analysis.band), analysis, 'mag');
 		}
 	}
+
+	const added = Object.fromEntries(
+		columns
+			.filter((column) => !table.columns.some((own) => own.field === column.field))
+			.map((column) => [column.field, null])
+	);
+	// Object.assign rather than a spread of several objects: V8 builds the latter on a far slower path.
+	const rows = table.rows.map((row) => ({
+		star: row.star,
+		values: Object.assign({}, row.values, added, writes.get(row)) as Record<string, CellValue>
+	}));
 
 	const issues: TableIssue[] = [];
 	rows.forEach((row, index) => {

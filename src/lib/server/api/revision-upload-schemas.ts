@@ -1,9 +1,12 @@
 import { z } from 'zod';
 import { LIGHT_CURVE_FILLS } from '../../calibration/index';
+import { StoredLightCurveResultSchema } from './light-curve-schemas';
 import { describeOperation, registerApiSchema } from './schema-registry';
 
 /** The revision upload: a raw CSV or TSV body, options in the query, and what the upload made. */
 export const REVISION_UPLOAD_OPERATION = 'POST /api/v1/calibrator-sets/{slug}/revisions';
+/** The light-curve analyses a revision took values from, readable by whoever may read the revision. */
+export const REVISION_ANALYSES_OPERATION = 'GET /api/v1/calibrator-sets/{slug}/revisions/{n}/light-curves';
 
 const digest = z.string().regex(/^sha256:[0-9a-f]{64}$/);
 
@@ -80,4 +83,35 @@ describeOperation(REVISION_UPLOAD_OPERATION, {
 		'415': problem('The body is not CSV or TSV'),
 		'422': problem('The table has problems, listed by line, column, value and reason in issues; nothing was stored')
 	}
+});
+
+export const RevisionLightCurvesSchema = registerApiSchema(
+	z.object({
+		calibrator_set: z.string(),
+		revision: z.number().int().positive(),
+		digest,
+		analyses: z.array(
+			StoredLightCurveResultSchema.extend({
+				fields: z.array(z.string()).describe('Columns of the revision whose values came from this analysis'),
+				upload: z.object({
+					id: z.uuid(),
+					source: z.object({ sha256: z.string(), name: z.string(), media_type: z.string(), bytes: z.number().int() }),
+					time_reference: z.string(),
+					time_offset_days: z.number()
+				})
+			})
+		)
+	}),
+	{
+		id: 'RevisionLightCurves',
+		description:
+			"The light-curve analyses a revision's value_sources name, in full, with the raw file's digest: empty for a revision that took no values from light curves.",
+		responseFor: [REVISION_ANALYSES_OPERATION]
+	}
+);
+
+describeOperation(REVISION_ANALYSES_OPERATION, {
+	description:
+		"Lets a reader of a revision follow each value_sources entry to its analysis (period search, Fourier model, means, warnings) even though the light-curve upload itself is private to its uploader. Analyses never change, so public sets' answers are cacheable for a year.",
+	responses: { '404': problem('No such set or revision, or a private set the caller may not see') }
 });

@@ -3,6 +3,8 @@ import type { LightCurveAnalysisValues, LightCurveFill, ValueSource } from '../.
 import { CalibratorValueSource } from '../entities/calibrator-value-source.entity';
 import type { CalibratorRevisionEntity } from '../entities/calibrator-revision.entity';
 import { findUpload } from '../light-curves/uploads';
+import { resultToWire } from '../light-curves/wire';
+import { findVisibleRevision } from './calibrator-set-reads';
 import type { Actor } from './actor';
 import { RegistryError } from './errors';
 
@@ -104,4 +106,45 @@ export async function setsOpenToUploads(em: EntityManager, actor: Actor) {
 		limit 200`,
 		[actor.roles.includes('admin'), actor.id]
 	)) as { slug: string; title: string }[];
+}
+
+/** The analyses a visible revision took values from, each with the fields it gave and its upload's file. */
+export async function revisionLightCurves(em: EntityManager, reader: Actor | null, slug: string, number: number) {
+	const { set, revision } = await findVisibleRevision(em, reader, slug, number);
+	const sources = await em.find(
+		CalibratorValueSource,
+		{ revision: revision.id },
+		{ populate: ['lightCurveResult', 'lightCurveResult.upload'], orderBy: { star: 'asc', field: 'asc' } }
+	);
+	const byResult = new Map<string, { result: (typeof sources)[number]['lightCurveResult']; fields: string[] }>();
+	for (const source of sources) {
+		const result = source.lightCurveResult;
+		const entry = byResult.get(result.id) ?? { result, fields: [] };
+		entry.fields.push(source.field);
+		byResult.set(result.id, entry);
+	}
+	return {
+		calibrator_set: set.slug,
+		revision: revision.number,
+		digest: revision.digest,
+		isPublic: set.visibility === 'public',
+		analyses: [...byResult.values()].map(({ result, fields }) => {
+			const upload = result.upload;
+			return {
+				...resultToWire(result),
+				fields,
+				upload: {
+					id: upload.id,
+					source: {
+						sha256: upload.sourceSha256,
+						name: upload.sourceName,
+						media_type: upload.sourceMediaType,
+						bytes: upload.sourceBytes
+					},
+					time_reference: upload.timeReference,
+					time_offset_days: Number(upload.timeOffsetDays)
+				}
+			};
+		})
+	};
 }

@@ -28,6 +28,13 @@ export const EXPORT_API_RULES: readonly AccessRule[] = [
 		summary: 'one calibrator revision as JSON, CSV or VOTable'
 	},
 	{
+		route: '/api/v1/calibrator-sets/[slug]/revisions/[n]/light-curves',
+		method: 'GET',
+		audience: anyone,
+		tokenScope: 'any',
+		summary: 'the light-curve analyses a revision took values from'
+	},
+	{
 		route: '/api/v1/export',
 		method: 'GET',
 		audience: anyone,
