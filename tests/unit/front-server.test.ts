@@ -1,7 +1,7 @@
 import type { AddressInfo } from 'node:net';
 import type { IncomingMessage, Server, ServerResponse } from 'node:http';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { createFrontServer } from '../../src/lib/server/edge/front-server';
+import { createFrontServer, type EdgeLogEntry } from '../../src/lib/server/edge/front-server';
 import { ImmutableCache } from '../../src/lib/server/edge/immutable-cache';
 import { FixedWindowLimiter } from '../../src/lib/server/edge/rate-limit';
 
@@ -161,5 +161,29 @@ describe('front server', () => {
 		expect(withToken.headers.get('ratelimit')).toBeNull();
 		// Pages are not counted.
 		expect((await fetch(limitedBase + '/relations')).status).toBe(200);
+	});
+
+	test('writes what it answers itself to the request log, without the query string; the app logs the rest', async () => {
+		const edgeLog: EdgeLogEntry[] = [];
+		const logged = createFrontServer({
+			app: standInApp,
+			cache: new ImmutableCache({ maxBytes: 1_000_000 }),
+			limiter: new FixedWindowLimiter({ name: 'anonymous', limit: 2, windowSeconds: 60 }),
+			addressSource: { header: '', xffDepth: 1 },
+			log: (entry) => edgeLog.push(entry)
+		});
+		const origin = await listen(logged);
+		try {
+			const path = '/api/v1/pins/public@10';
+			for (let i = 0; i < 3; i++) await (await fetch(`${origin}${path}?token=secret`)).arrayBuffer();
+			expect(edgeLog.map(({ durationMs: _ms, ...entry }) => entry)).toEqual([
+				{ method: 'GET', path, status: 200, answeredBy: 'edge-cache' },
+				{ method: 'GET', path, status: 429, answeredBy: 'rate-limit' }
+			]);
+			expect(edgeLog.every((entry) => entry.durationMs >= 0 && entry.durationMs < 1000)).toBe(true);
+		} finally {
+			logged.closeAllConnections();
+			await new Promise((resolve) => logged.close(resolve));
+		}
 	});
 });

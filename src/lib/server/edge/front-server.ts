@@ -13,6 +13,18 @@ export interface FrontServerOptions {
 	/** Null: anonymous API clients are not limited. */
 	limiter: FixedWindowLimiter | null;
 	addressSource: AddressSource;
+	/** Told of every answer the front server gives itself (the app logs its own answers). */
+	log?: (entry: EdgeLogEntry) => void;
+}
+
+/** A request answered before the app: a cache replay or a rate-limit refusal, as the app's request log has them. */
+export interface EdgeLogEntry {
+	method: string;
+	/** Without the query string, which may hold tokens. */
+	path: string;
+	status: number;
+	durationMs: number;
+	answeredBy: 'edge-cache' | 'rate-limit';
 }
 
 /** RFC 9211 Cache-Status names this cache by this identifier. */
@@ -108,16 +120,25 @@ function tooManyRequests(response: ServerResponse, retryAfter: number, limit: nu
 
 /** The request path through the front server, as a function so tests can drive it without a socket. */
 export function frontRequestHandler(options: FrontServerOptions) {
-	const { app, cache, limiter, addressSource } = options;
+	const { app, cache, limiter, addressSource, log } = options;
 	const notFound = (response: ServerResponse) => () => {
 		if (!response.headersSent) response.writeHead(404, { 'content-type': 'text/plain' });
 		response.end('Not found');
 	};
 
 	return (request: IncomingMessage, response: ServerResponse): void => {
+		const started = performance.now();
 		const method = request.method ?? 'GET';
 		const target = request.url ?? '/';
 		const pathname = pathOf(target);
+		const logged = (answeredBy: EdgeLogEntry['answeredBy']) =>
+			log?.({
+				method,
+				path: pathname,
+				status: response.statusCode,
+				durationMs: Math.round((performance.now() - started) * 10) / 10,
+				answeredBy
+			});
 
 		const preflight = preflightHeaders(method, pathname, request.headers['access-control-request-method']);
 		if (preflight) {
@@ -136,6 +157,7 @@ export function frontRequestHandler(options: FrontServerOptions) {
 			}
 			if (!decision.allowed) {
 				tooManyRequests(response, decision.resetSeconds, limiter.policy.limit, limiter.policy.windowSeconds);
+				logged('rate-limit');
 				return;
 			}
 		}
@@ -145,6 +167,7 @@ export function frontRequestHandler(options: FrontServerOptions) {
 			const stored = cache.get(target);
 			if (stored) {
 				replay(request, response, stored);
+				logged('edge-cache');
 				return;
 			}
 			if (method === 'GET') {

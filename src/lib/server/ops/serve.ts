@@ -30,7 +30,8 @@ const server = createFrontServer({
 	app: handler,
 	cache: new ImmutableCache({ maxBytes: config.CANDLEBOOK_EDGE_CACHE_BYTES }),
 	limiter: rate ? new FixedWindowLimiter({ name: 'anonymous', ...rate }) : null,
-	addressSource: addressSourceFrom(process.env)
+	addressSource: addressSourceFrom(process.env),
+	log: (entry) => logger.info(entry, 'request')
 });
 
 const host = process.env.HOST ?? '0.0.0.0';
