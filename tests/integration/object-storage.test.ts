@@ -5,6 +5,7 @@ import { join } from 'node:path';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { startLocalObjectServer, type LocalObjectServer } from '../../src/lib/server/storage/local-object-server';
 import { ObjectStorage } from '../../src/lib/server/storage/object-storage';
+import { STAGING_PREFIX, sweepStagedFiles } from '../../src/lib/server/storage/staging-sweep';
 
 let server: LocalObjectServer;
 let storage: ObjectStorage;
@@ -45,5 +46,22 @@ describe('object storage through the AWS SDK against a local S3 server', () => {
 		expect(second.key).toBe(first.key);
 		await storage.delete(first.key);
 		expect(await storage.exists(first.key)).toBe(false);
+	});
+
+	test('the staging sweep removes staged files written before the cutoff, and nothing outside staging', async () => {
+		const encode = (text: string) => new TextEncoder().encode(text);
+		// Two people's staged files, and a source file that must survive.
+		const staged = await Promise.all(
+			['person-a', 'person-b'].map((person) =>
+				storage.putContentAddressed(`${STAGING_PREFIX}${person}`, encode(`star\n${person}\n`), 'text/csv')
+			)
+		);
+		const source = await storage.putContentAddressed('calibrator-sources', encode('star\nkept\n'), 'text/csv');
+
+		// Written just now: an hour-old cutoff keeps them.
+		expect(await sweepStagedFiles(storage, new Date(Date.now() - 3_600_000))).toEqual({ removed: 0, kept: 2 });
+		expect(await sweepStagedFiles(storage, new Date(Date.now() + 60_000))).toEqual({ removed: 2, kept: 0 });
+		for (const object of staged) expect(await storage.exists(object.key)).toBe(false);
+		expect(await storage.exists(source.key)).toBe(true);
 	});
 });

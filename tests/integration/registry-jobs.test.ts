@@ -2,7 +2,13 @@ import type { MikroORM } from '@mikro-orm/postgresql';
 import type PgBoss from 'pg-boss';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import { AnalysisJob } from '../../src/lib/server/entities/index';
-import { fitQueueOf, startFitWorker, startJobQueue } from '../../src/lib/server/jobs/queue';
+import {
+	fitQueueOf,
+	STAGING_SWEEP_QUEUE,
+	startFitWorker,
+	startJobQueue,
+	startStagingSweeper
+} from '../../src/lib/server/jobs/queue';
 import type { Actor } from '../../src/lib/server/registry/actor';
 import { createCalibratorSet, uploadRevision } from '../../src/lib/server/registry/calibrator-sets';
 import { findFitJob, requestFit, runFitJob } from '../../src/lib/server/registry/fits';
@@ -102,5 +108,12 @@ describe('background fits on pg-boss', () => {
 		const other = await createActor(orm, 'other', ['reader', 'curator']);
 		const { job } = await requestFit(orm.em.fork(), curator, request({}), null);
 		await expect(findFitJob(orm.em.fork(), other, job.id)).rejects.toMatchObject({ status: 404 });
+	});
+
+	test('the hourly sweep of abandoned staged uploads is scheduled once on the shared queue', async () => {
+		await startStagingSweeper(boss, () => store.storage);
+		await startStagingSweeper(boss, () => store.storage);
+		const schedules = (await boss.getSchedules()).filter((entry) => entry.name === STAGING_SWEEP_QUEUE);
+		expect(schedules.map((entry) => entry.cron)).toEqual(['17 * * * *']);
 	});
 });

@@ -4,16 +4,17 @@ import type { UploadLimits } from '../registry/calibrator-sets';
 import { RegistryError } from '../registry/errors';
 import { getObjectStorage } from '../storage/app-storage';
 import { contentAddress } from '../storage/object-storage';
+import { STAGING_PREFIX } from '../storage/staging-sweep';
 
 /**
  * The upload wizard keeps the file between its steps in object storage, addressed by the uploader and
  * the bytes' SHA-256: the steps pass only the hash, the bytes never travel back through the browser,
- * and nobody can commit a file another person staged. Nothing in the registry changes until commit.
+ * and nobody can commit a file another person staged. Nothing in the registry changes until commit;
+ * files of abandoned wizards are swept after a day (staging-sweep.ts).
  */
-const STAGING_PREFIX = 'calibrator-staging';
 const SHA256 = /^[0-9a-f]{64}$/;
 
-const prefixFor = (userId: string) => `${STAGING_PREFIX}/${userId}`;
+const prefixFor = (userId: string) => `${STAGING_PREFIX}${userId}`;
 
 /** The same limits the upload API applies. */
 export function uploadLimits(): UploadLimits {

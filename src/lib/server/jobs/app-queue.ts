@@ -4,7 +4,14 @@ import { getOrm } from '../db';
 import type { FitQueue } from '../registry/fits';
 import type { LightCurveQueue } from '../light-curves/jobs';
 import { getObjectStorage } from '../storage/app-storage';
-import { fitQueueOf, lightCurveQueueOf, startFitWorker, startJobQueue, startLightCurveWorker } from './queue';
+import {
+	fitQueueOf,
+	lightCurveQueueOf,
+	startFitWorker,
+	startJobQueue,
+	startLightCurveWorker,
+	startStagingSweeper
+} from './queue';
 
 let boss: Promise<PgBoss> | undefined;
 
@@ -19,6 +26,7 @@ export function getAppJobQueue(): Promise<PgBoss> {
 		if (config.CANDLEBOOK_IN_PROCESS_WORKER === 'true') {
 			await startFitWorker(started, await getOrm());
 			await startLightCurveWorker(started, await getOrm(), getObjectStorage);
+			await startStagingSweeper(started, getObjectStorage);
 		}
 		return started;
 	})().catch((error: unknown) => {

@@ -4,6 +4,7 @@ import { logger } from '../logger';
 import { runFitJob, type FitQueue } from '../registry/fits';
 import { runLightCurveJob, type LightCurveQueue } from '../light-curves/jobs';
 import type { ObjectStorage } from '../storage/object-storage';
+import { sweepStagedFiles } from '../storage/staging-sweep';
 
 /**
  * The background job queue: pg-boss in the application's own PostgreSQL (schema `pgboss`). The app
@@ -12,6 +13,9 @@ import type { ObjectStorage } from '../storage/object-storage';
  */
 export const FIT_QUEUE = 'candlebook-fit';
 export const LIGHT_CURVE_QUEUE = 'candlebook-light-curves';
+export const STAGING_SWEEP_QUEUE = 'candlebook-staging-sweep';
+/** Hourly, at a minute past nothing else in particular; pg-boss runs a schedule once across all workers. */
+const STAGING_SWEEP_CRON = '17 * * * *';
 
 export interface FitMessage {
 	jobId: string;
@@ -23,6 +27,7 @@ export async function startJobQueue(databaseUrl: string): Promise<PgBoss> {
 	await boss.start();
 	await boss.createQueue(FIT_QUEUE);
 	await boss.createQueue(LIGHT_CURVE_QUEUE);
+	await boss.createQueue(STAGING_SWEEP_QUEUE);
 	return boss;
 }
 
@@ -68,5 +73,14 @@ export async function startLightCurveWorker(
 			await runLightCurveJob(orm.em.fork(), job.data.jobId, storage);
 			logger.info({ jobId: job.data.jobId }, 'light-curve analysis finished');
 		}
+	});
+}
+
+/** Removes the upload wizard's abandoned staged files every hour (see staging-sweep.ts). */
+export async function startStagingSweeper(boss: PgBoss, storage: () => ObjectStorage): Promise<string> {
+	await boss.schedule(STAGING_SWEEP_QUEUE, STAGING_SWEEP_CRON);
+	return boss.work(STAGING_SWEEP_QUEUE, { batchSize: 1 }, async () => {
+		const swept = await sweepStagedFiles(storage());
+		logger.info(swept, 'staged upload files swept');
 	});
 }

@@ -4,6 +4,7 @@ import {
 	GetObjectCommand,
 	HeadBucketCommand,
 	HeadObjectCommand,
+	ListObjectsV2Command,
 	NotFound,
 	PutObjectCommand,
 	S3Client
@@ -95,6 +96,20 @@ export class ObjectStorage {
 			if (error instanceof NotFound || (error as { name?: string }).name === 'NotFound') return false;
 			throw error;
 		}
+	}
+
+	/** Every object under a prefix with when it was written, page by page. */
+	async *list(prefix: string): AsyncGenerator<{ key: string; lastModified: Date }> {
+		let token: string | undefined;
+		do {
+			const page = await this.client.send(
+				new ListObjectsV2Command({ Bucket: this.bucket, Prefix: prefix, ContinuationToken: token })
+			);
+			for (const item of page.Contents ?? []) {
+				if (item.Key && item.LastModified) yield { key: item.Key, lastModified: item.LastModified };
+			}
+			token = page.IsTruncated ? page.NextContinuationToken : undefined;
+		} while (token);
 	}
 
 	async delete(key: string): Promise<void> {
