@@ -89,11 +89,29 @@ test('the relation page draws every used and rejected calibrator of the current 
 	await expect(page.getByTestId('reproduce-result')).toContainText(current.digest);
 });
 
+test('without scripts a version page shows every citation format and snippet language, one after another', async ({
+	browser
+}) => {
+	const noScript = await browser.newContext({ javaScriptEnabled: false });
+	const page = await noScript.newPage();
+	const current = seeded.versions.at(-1)!;
+	const number = seeded.versions.length;
+	await page.goto(`/relations/${seeded.slug}/versions/${number}`);
+	await expect(page.getByTestId('citation-noscript-bibtex')).toContainText(
+		`candlebook_${seeded.slug.replace(/-/g, '_')}_v${number}`
+	);
+	await expect(page.getByTestId('citation-noscript-datacite')).toContainText(seeded.slug);
+	for (const language of ['python', 'typescript'])
+		await expect(page.getByTestId(`pin-snippet-noscript-${language}`)).toContainText(`/api/v1/pins/${current.ref}`);
+	await noScript.close();
+});
+
 test('a superseded version has its own page, banner and snippet', async ({ page }) => {
 	const first = seeded.versions[0];
 	await page.goto(`/relations/${seeded.slug}/versions/1`);
 	await expect(page.getByText('A newer version is current')).toBeVisible();
 	await expect(page.getByTestId('pin-snippet')).toContainText(`/api/v1/pins/${first.ref}`);
+	await expect(page.getByTestId('pin-snippet-noscript-python')).toBeHidden();
 	await expect(page.getByTestId('frozen-content')).toContainText(first.calibrator_set.digest);
 	await expect(page.getByTestId('pl-diagram').locator('g.cb-used-calibrators > *')).toHaveCount(first.n_used);
 	// Nobody signed in: no lifecycle link.
