@@ -42,7 +42,7 @@ describe('the generated OpenAPI document', () => {
 interface OperationShape {
 	description?: string;
 	parameters: unknown[];
-	responses: Record<string, { description: string; content?: Record<string, unknown> }>;
+	responses: Record<string, { description: string; content?: Record<string, { schema?: unknown }> }>;
 }
 
 describe('operations described beyond their schemas', () => {
@@ -66,5 +66,15 @@ describe('operations described beyond their schemas', () => {
 		});
 		expect(operation.responses['304']).toEqual({ description: 'Not modified' });
 		expect(Object.keys(operation.responses['200'].content ?? {})).toEqual(['text/csv']);
+	});
+
+	test('a revision documents its JSON schema for JSON only; CSV and VOTable are text, the archive bytes', () => {
+		const paths = buildOpenApiDocument('http://127.0.0.1:3000').paths as Record<string, Record<string, OperationShape>>;
+		const revision = paths['/api/v1/calibrator-sets/{slug}/revisions/{n}'].get.responses['200'].content!;
+		expect(revision['application/json'].schema).toEqual({ $ref: '#/components/schemas/CalibratorRevisionExport' });
+		expect(revision['text/csv'].schema).toEqual({ type: 'string' });
+		expect(revision['application/x-votable+xml'].schema).toEqual({ type: 'string' });
+		const archive = paths['/api/v1/export'].get.responses['200'].content!;
+		expect(archive['application/zip'].schema).toEqual({ type: 'string', contentMediaType: 'application/zip' });
 	});
 });

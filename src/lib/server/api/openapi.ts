@@ -41,12 +41,20 @@ function schemaFor(operation: string, role: 'requestFor' | 'responseFor'): strin
 	return registeredApiSchemas.find((meta) => meta[role]?.includes(operation))?.id ?? null;
 }
 
+/** A registered schema describes JSON bodies; other media types (CSV, VOTable, zip) are documented as text or bytes. */
+function mediaSchema(type: string, response: OperationResponse): JsonObject {
+	if (type.endsWith('json')) return response.schema ? { $ref: SCHEMA_REF(response.schema) } : {};
+	if (type.startsWith('text/') || type.endsWith('+xml')) return { type: 'string' };
+	return { type: 'string', contentMediaType: type };
+}
+
 function documentedResponse(status: string, response: OperationResponse): JsonObject {
 	const mediaTypes = response.mediaTypes ?? ['application/json'];
-	const schema = response.schema ? { $ref: SCHEMA_REF(response.schema) } : {};
 	return {
 		description: response.description ?? (status.startsWith('2') ? 'Success' : `HTTP ${status}`),
-		...(mediaTypes.length ? { content: Object.fromEntries(mediaTypes.map((type) => [type, { schema }])) } : {})
+		...(mediaTypes.length
+			? { content: Object.fromEntries(mediaTypes.map((type) => [type, { schema: mediaSchema(type, response) }])) }
+			: {})
 	};
 }
 
