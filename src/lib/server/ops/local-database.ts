@@ -95,7 +95,14 @@ export async function openLocalDatabase(): Promise<RunningDatabase> {
 }
 
 /** Starts a throwaway cluster in a temp folder; `stop` removes every trace of it. */
-export async function openThrowawayDatabase(database = 'candlebook_test'): Promise<RunningDatabase> {
+/**
+ * A throwaway cluster with the named database, and any `extraDatabases` beside it in the same cluster
+ * and owned by the same role (their URLs in `extraUrls`), e.g. one for checking the demo seed alone.
+ */
+export async function openThrowawayDatabase(
+	database = 'candlebook_test',
+	extraDatabases: string[] = []
+): Promise<RunningDatabase & { extraUrls: Record<string, string> }> {
 	ensureSystemPackages([POSTGRESQL]);
 	const root = mkdtempSync(join(tmpdir(), 'candlebook-pg-'));
 	// mkdtemp makes a root-only folder; the postgres user must be able to pass through it.
@@ -115,9 +122,18 @@ export async function openThrowawayDatabase(database = 'candlebook_test'): Promi
 		cluster.initialise();
 		cluster.start();
 		cluster.ensureDatabase(credentials);
+		for (const extra of extraDatabases) cluster.ensureDatabase({ ...credentials, database: extra });
 	} catch (error) {
 		stop();
 		throw error;
 	}
-	return { url: cluster.databaseUrl(credentials), port: cluster.options.port, location: root, stop };
+	return {
+		url: cluster.databaseUrl(credentials),
+		extraUrls: Object.fromEntries(
+			extraDatabases.map((extra) => [extra, cluster.databaseUrl({ ...credentials, database: extra })])
+		),
+		port: cluster.options.port,
+		location: root,
+		stop
+	};
 }

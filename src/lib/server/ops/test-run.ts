@@ -27,7 +27,8 @@ interface RunnerSummary {
 
 ensureSystemPackages([POSTGRESQL, CHROMIUM, PYTHON3_ASTROPY, LIBXML2_UTILS]);
 const summaryDir = mkdtempSync(join(tmpdir(), 'candlebook-test-summary-'));
-const database = await openThrowawayDatabase();
+// A second database in the same cluster for the demo seed check, so the demo never mixes with test data.
+const database = await openThrowawayDatabase('candlebook_test', ['candlebook_demo_check']);
 const mailDir = join(summaryDir, 'mail');
 const mail = await startMailCatcher({ dir: mailDir });
 const objects = await startLocalObjectStore(join(summaryDir, 'objects'));
@@ -43,6 +44,7 @@ await migrateDatabase(database.url);
 const env: NodeJS.ProcessEnv = {
 	...process.env,
 	DATABASE_URL: database.url,
+	CANDLEBOOK_DEMO_DATABASE_URL: database.extraUrls.candlebook_demo_check,
 	CANDLEBOOK_TEST_SUMMARY_DIR: summaryDir,
 	CANDLEBOOK_REFERENCE_DATA: process.env.CANDLEBOOK_REFERENCE_DATA ?? join(PROJECT_ROOT, '..', 'shared', 'data'),
 	LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',

@@ -5,6 +5,7 @@ import { Group, User } from '../entities/index';
 import type { ObjectStorage } from '../storage/object-storage';
 import type { Actor } from './actor';
 import { createCalibratorSet, uploadRevision } from './calibrator-sets';
+import { seedLightCurveDemo } from './demo-light-curves';
 import { requestFit } from './fits';
 import { createProposal, editProposal, reviewProposal, submitProposal, withdrawProposal } from './proposals';
 import { withoutRegistryMail } from './notifications';
@@ -258,6 +259,7 @@ async function seed(
 		citations: ['Kestrel Cepheid Survey (invented), Demo Parallax Sample, 2026.']
 	});
 	await upload('kestrel-milky-way-parallaxes', csvOf(GALACTIC_HEADER, galacticRows()), 'mw-parallaxes.csv', '');
+	await seedLightCurveDemo(fork, storage, curator, groupSlug);
 
 	// Relations.
 	const relation = (

@@ -1,0 +1,83 @@
+import { MikroORM } from '@mikro-orm/postgresql';
+import { afterAll, beforeAll, describe, expect, test } from 'vitest';
+import config from '../../mikro-orm.config';
+import { verifyDigest } from '../../src/lib/calibration/index';
+import { CalibratorRevision, CalibratorSet, CalibratorValueSource, User } from '../../src/lib/server/entities/index';
+import { Relation } from '../../src/lib/server/entities/relation.entity';
+import { RelationVersion } from '../../src/lib/server/entities/relation-version.entity';
+import { VersionLifecycle } from '../../src/lib/server/entities/version-lifecycle.entity';
+import { migrateDatabase, seedDemo } from '../../src/lib/server/ops/migrate';
+import { revisionContent } from '../../src/lib/server/registry/calibrator-sets';
+import { DEMO_LIGHT_CURVE_SET, inventedCurveStars } from '../../src/lib/server/registry/demo-light-curves';
+import { DEMO_MARKER_SET } from '../../src/lib/server/registry/demo-registry';
+
+/**
+ * `npm start` migrates and seeds the invented demo: here exactly that, on a database of its own in the
+ * test cluster (so the demo never mixes with other tests' data), and a second start that adds nothing.
+ */
+const url = process.env.CANDLEBOOK_DEMO_DATABASE_URL;
+let orm: MikroORM;
+
+async function counts() {
+	const em = orm.em.fork();
+	return {
+		users: await em.count(User, {}),
+		sets: await em.count(CalibratorSet, {}),
+		revisions: await em.count(CalibratorRevision, {}),
+		relations: await em.count(Relation, {}),
+		versions: await em.count(RelationVersion, {})
+	};
+}
+
+beforeAll(async () => {
+	if (!url) throw new Error('CANDLEBOOK_DEMO_DATABASE_URL is not set: run integration tests through `npm test`');
+	await migrateDatabase(url);
+	await seedDemo(url);
+	orm = await MikroORM.init({ ...config, clientUrl: url, debug: false });
+}, 300_000);
+
+afterAll(async () => {
+	await orm?.close(true);
+});
+
+describe('the invented demo', () => {
+	test('has its calibrator sets, relations with versions in every standing, and says it is invented', async () => {
+		const em = orm.em.fork();
+		const sets = await em.find(CalibratorSet, {}, { orderBy: { slug: 'asc' } });
+		expect(sets.map((set) => set.slug)).toEqual(
+			[DEMO_MARKER_SET, DEMO_LIGHT_CURVE_SET, 'kestrel-milky-way-parallaxes'].sort()
+		);
+		expect(sets.every((set) => set.title.includes('(invented)'))).toBe(true);
+		const relations = await em.find(Relation, {});
+		expect(relations.length).toBeGreaterThanOrEqual(5);
+		expect(relations.every((relation) => relation.title.includes('(invented)'))).toBe(true);
+		const lifecycles = await em.find(VersionLifecycle, {});
+		expect(lifecycles.some((lifecycle) => lifecycle.deprecatedAt !== null)).toBe(true);
+		expect(lifecycles.some((lifecycle) => lifecycle.embargoUntil !== null)).toBe(true);
+	});
+
+	test('its light-curve set takes every period and mean from the invented curves, near the periods they were made with', async () => {
+		const em = orm.em.fork();
+		const set = await em.findOneOrFail(CalibratorSet, { slug: DEMO_LIGHT_CURVE_SET });
+		const revision = await em.findOneOrFail(CalibratorRevision, { calibratorSet: set.id, number: 1 });
+		const content = revisionContent(revision);
+		expect(verifyDigest(content as unknown as Record<string, unknown>).ok).toBe(true);
+		const stars = inventedCurveStars();
+		// Every star: period, its error, and V and Ic means with their errors.
+		expect(content.value_sources).toHaveLength(stars.length * 6);
+		expect(await em.count(CalibratorValueSource, { revision: revision.id })).toBe(stars.length * 6);
+		for (const { star, periodDays } of stars) {
+			const values = content.rows.find((row) => row.star === star)!.values;
+			const found = Number(values.period_days);
+			// The truth is the period each invented curve was generated with; the noise makes 5σ generous.
+			expect(Math.abs(found - periodDays), star).toBeLessThan(5 * Number(values.period_err_days));
+			expect(Number(values.mag_V)).toBeGreaterThan(Number(values.mag_Ic));
+		}
+	});
+
+	test('a second start adds nothing', async () => {
+		const before = await counts();
+		await seedDemo(url!);
+		expect(await counts()).toEqual(before);
+	});
+});
