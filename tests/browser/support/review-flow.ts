@@ -1,8 +1,8 @@
 import { expect, type Page } from '@playwright/test';
 
 /**
- * Review actions as a reviewer performs them on the proposal page, for any test that walks the whole
- * path. The page must belong to a context signed in as a reviewer who may decide on the proposal.
+ * Proposal-page actions as reviewers and authors perform them, for any test that walks the whole path.
+ * The page must belong to a context signed in as someone who may take the step.
  */
 
 async function decide(
@@ -14,6 +14,11 @@ async function decide(
 ) {
 	await page.goto(`/review/${proposalId}`);
 	await page.getByLabel('Review comment').fill(comment);
+	await press(page, proposalId, button, done);
+}
+
+/** Clicks a proposal page's button and waits for the page that says it went through. */
+async function press(page: Page, proposalId: string, button: string, done: string) {
 	await page.getByRole('button', { name: button, exact: true }).click();
 	try {
 		await page.waitForURL(new RegExp(`/review/${proposalId}\\?done=${done}`), { timeout: 15_000 });
@@ -40,4 +45,21 @@ export async function approve(
 		throw new Error(`The approval was recorded but froze no version yet (${count.replace(/\s+/g, ' ').trim()}).`);
 	}
 	return { ref: (await ref.innerText()).trim(), digest: (await page.getByTestId('frozen-digest').innerText()).trim() };
+}
+
+const AUTHOR_STEPS = {
+	submit: { button: 'Submit for review', done: 'submitted', state: 'in review' },
+	withdraw: { button: 'Withdraw', done: 'withdrawn', state: 'withdrawn' },
+	rebase: { button: 'Rebase on the current version', done: 'rebased', state: 'in review' }
+} as const;
+
+/** An author's step; works with scripts on or off, since each button is a plain form post. */
+export async function authorStep(
+	page: Page,
+	opts: { proposalId: string; step: keyof typeof AUTHOR_STEPS }
+): Promise<void> {
+	const { button, done, state } = AUTHOR_STEPS[opts.step];
+	await page.goto(`/review/${opts.proposalId}`);
+	await press(page, opts.proposalId, button, done);
+	await expect(page.getByTestId('proposal-state')).toHaveText(state);
 }

@@ -1,8 +1,8 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { expect, type Browser, type BrowserContext } from '@playwright/test';
 import { syntheticCalibrators } from '../../../src/lib/calibration/index';
-import type { Role } from '../../../src/lib/server/entities/index';
-import { createBearerToken, createPerson, createSessionCookie, uniqueSlug } from './accounts';
+import type { GroupStanding, Role } from '../../../src/lib/server/entities/index';
+import { createBearerToken, createGroupRow, createPerson, createSessionCookie, uniqueSlug } from './accounts';
 
 /**
  * Review-desk set-up over the registry API (bearer tokens) against the running build: people,
@@ -17,10 +17,33 @@ export interface Person {
 	token: string;
 }
 
-export async function reviewPerson(orm: MikroORM, label: string, roles: Role[], group: string): Promise<Person> {
-	const user = await createPerson(orm, { label, roles: ['reader', ...roles], groups: [{ group, standing: 'member' }] });
+export async function reviewPerson(
+	orm: MikroORM,
+	label: string,
+	roles: Role[],
+	group: string,
+	standing: GroupStanding = 'member'
+): Promise<Person> {
+	const user = await createPerson(orm, { label, roles: ['reader', ...roles], groups: [{ group, standing }] });
 	const token = await createBearerToken(orm, user.id, ['write', 'review', 'read:private']);
 	return { id: user.id, email: user.email, displayName: user.displayName, token };
+}
+
+export interface ReviewDesk {
+	group: string;
+	/** A curator, who proposes. */
+	author: Person;
+	reviewer: Person;
+	/** A calibrator set of the author's with two revisions (see `hostCsv`). */
+	set: string;
+}
+
+/** A group of its own with an author, a reviewer and the author's calibrator set. */
+export async function reviewDesk(orm: MikroORM, label: string): Promise<ReviewDesk> {
+	const group = await createGroupRow(orm, uniqueSlug(label));
+	const author = await reviewPerson(orm, `${label} author`, ['curator'], group);
+	const reviewer = await reviewPerson(orm, `${label} reviewer`, ['reviewer'], group);
+	return { group, author, reviewer, set: await calibratorSet(author, group) };
 }
 
 /** A browser context signed in as the person (a session cookie made directly in the database). */
@@ -132,10 +155,21 @@ export async function relation(author: Person, group: string): Promise<string> {
 	return slug;
 }
 
-/** A fit of one revision of the set, proposed (and submitted) as the relation's next version. */
+/**
+ * A fit of one revision of the set, proposed (and submitted) as the relation's next version; with
+ * `embargoUntil` the version it becomes stays hidden from outside the group until then.
+ */
 export async function proposal(
 	author: Person,
-	options: { set: string; revision: 1 | 2; relation: string; title: string; rationale?: string; submit?: boolean }
+	options: {
+		set: string;
+		revision: 1 | 2;
+		relation: string;
+		title: string;
+		rationale?: string;
+		submit?: boolean;
+		embargoUntil?: Date;
+	}
 ): Promise<string> {
 	const fit = await api(author.token, 'POST', '/api/v1/fits', {
 		calibrator_set: options.set,
@@ -147,7 +181,8 @@ export async function proposal(
 		fit: fit.body.id,
 		title: options.title,
 		rationale: options.rationale ?? '',
-		submit: options.submit ?? true
+		submit: options.submit ?? true,
+		...(options.embargoUntil ? { embargo_until: options.embargoUntil.toISOString() } : {})
 	});
 	expect(proposed.status).toBe(201);
 	return proposed.body.id as string;

@@ -6,7 +6,7 @@ import { RelationVersion } from '../entities/relation-version.entity';
 import { RelationWatch } from '../entities/relation-watch.entity';
 import { hasRole, isAdmin, standingInGroup, type Actor } from '../registry/actor';
 import { notFound } from '../registry/errors';
-import { findVersion, isEmbargoed, listVersions } from '../registry/versions';
+import { findVersion, isEmbargoed, listVersions, visibleOrNull } from '../registry/versions';
 import { refitFrozenVersion, type FrozenContent } from './refit-version';
 
 /**
@@ -84,7 +84,7 @@ export async function loadRelationView(
 	requested: number | null,
 	origin: string
 ) {
-	const { relation, lifecycles } = await listVersions(em, actor, slug);
+	const { relation, lifecycles, standings } = await listVersions(em, actor, slug);
 	const versions = await em.find(
 		RelationVersion,
 		{ relation, number: { $in: lifecycles.map((lifecycle) => lifecycle.number) } },
@@ -97,10 +97,10 @@ export async function loadRelationView(
 			version: lifecycle.number,
 			ref: `${slug}@${lifecycle.number}`,
 			digest: version.digest,
-			status: lifecycle.status,
+			status: standings.get(lifecycle.number)!,
 			approvedAt: String((version.content as { approved_at?: string }).approved_at ?? iso(version.createdAt)),
 			deprecationReason: lifecycle.deprecationReason ?? null,
-			successor: lifecycle.successorNumber ?? null,
+			successor: visibleOrNull(standings, lifecycle.successorNumber),
 			embargoUntil: iso(lifecycle.embargoUntil),
 			embargoed: isEmbargoed(lifecycle)
 		};

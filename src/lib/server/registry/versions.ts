@@ -5,12 +5,17 @@ import { User } from '../entities/index';
 import type { OutgoingMail } from '../mail/mailer';
 import { Relation, type RelationEntity } from '../entities/relation.entity';
 import { RelationVersion, type RelationVersionEntity } from '../entities/relation-version.entity';
-import { VersionLifecycle, type VersionLifecycleEntity } from '../entities/version-lifecycle.entity';
+import {
+	VersionLifecycle,
+	type VersionLifecycleEntity,
+	type VersionStatus
+} from '../entities/version-lifecycle.entity';
 import { belongsTo, hasRole, isAdmin, standingInGroup, type Actor } from './actor';
 import { auditRegistry } from './audit';
 import { conflict, forbidden, invalid, notFound } from './errors';
 import { deliver, versionMail, watchersOf } from './notifications';
 import { findVisibleRelation } from './relations';
+import { standingsFor } from './version-standing';
 
 /**
  * Versions: frozen content (insert-only) plus a mutable lifecycle. `current` is the newest version that
@@ -93,11 +98,21 @@ export async function findVersion(em: EntityManager, actor: Actor | null, slug: 
 	return { relation, version, lifecycle };
 }
 
+/**
+ * The versions the actor may see, oldest first, with how each stands for the actor: worked out over
+ * the visible ones only, so no reader is told of a newer version hidden by its embargo.
+ */
 export async function listVersions(em: EntityManager, actor: Actor | null, slug: string) {
 	const relation = await findVisibleRelation(em, actor, slug);
-	const lifecycles = await em.find(VersionLifecycle, { relation }, { orderBy: { number: 'asc' } });
+	const all = await em.find(VersionLifecycle, { relation }, { orderBy: { number: 'asc' } });
 	const member = await belongsTo(em, actor, relation.group.id);
-	return { relation, lifecycles: lifecycles.filter((lifecycle) => member || !isEmbargoed(lifecycle)) };
+	const lifecycles = all.filter((lifecycle) => member || !isEmbargoed(lifecycle));
+	return { relation, lifecycles, standings: standingsFor(lifecycles) };
+}
+
+/** A successor as a reader may be told of it: null when that version is hidden from them. */
+export function visibleOrNull(standings: ReadonlyMap<number, VersionStatus>, successor: number | null | undefined) {
+	return successor !== null && successor !== undefined && standings.has(successor) ? successor : null;
 }
 
 export interface DeprecateInput {
