@@ -152,6 +152,21 @@ test('a group manager releases embargoed versions early, with and without JavaSc
 	await expect(outsiderPage.getByTestId('lifecycle-status')).toHaveText('current');
 	await expect(outsiderPage.getByTestId('lifecycle-versions').getByRole('listitem')).toHaveText(['@1 current']);
 	expect((await outsiderPage.goto(`/relations/${slug}/versions/2/lifecycle`))?.status()).toBe(404);
+	// The same standing wherever the version is used: the worksheet offers @1, and distances call it current.
+	await outsiderPage.goto('/worksheet');
+	await expect(outsiderPage.locator(`#relation option[value="${slug}@1"]`)).toHaveCount(1);
+	const distances = await fetch(`${origin}/api/v1/distances`, {
+		method: 'POST',
+		headers: { 'content-type': 'application/json' },
+		body: JSON.stringify({
+			relation: `${slug}@1`,
+			stars: [{ id: 'invented-1', period_days: 10, mean_mag: 12.4, mean_mag_err: 0.05 }]
+		})
+	});
+	const answered = await distances.json();
+	expect(distances.status, JSON.stringify(answered)).toBe(200);
+	expect(answered.relation.status).toBe('current');
+	expect(answered.warnings.map((warning: { code: string }) => warning.code)).not.toContain('version_superseded');
 
 	const plain = await pageAs(browser, desk.manager, { javaScriptEnabled: false });
 	await releaseOnPage(plain, slug, 2);

@@ -16,7 +16,7 @@ import { hostDistanceBatch, type HostBatchResult } from '../../calibration/host-
 import type { EntityManager } from '@mikro-orm/postgresql';
 import type { Actor } from '../registry/actor';
 import { RegistryError } from '../registry/errors';
-import { findVersion } from '../registry/versions';
+import { findVersion, listVersions, visibleOrNull } from '../registry/versions';
 import type { FieldError } from './problem';
 import { parseRef } from './pinned-version';
 import { describeOperation, registerApiSchema } from './schema-registry';
@@ -350,6 +350,10 @@ export async function computeDistances(
 	if (!ref)
 		throw new RegistryError(404, 'not-found', `"${inputs.relation}" is not a reference of the form slug@version.`);
 	const { version, lifecycle } = await findVersion(em, reader, ref.slug, ref.number);
+	// The standing among the versions this reader may see: a newer version still under embargo is not told.
+	const { standings } = await listVersions(em, reader, ref.slug);
+	const status = lifecycle.status === 'deprecated' ? 'deprecated' : (standings.get(ref.number) ?? lifecycle.status);
+	const successor = visibleOrNull(standings, lifecycle.successorNumber);
 	const columns = readStarColumns(inputs.stars);
 	const content = version.content as unknown as RelationVersionContent;
 	const relation = relationFromContent(content);
@@ -377,14 +381,14 @@ export async function computeDistances(
 		throw error;
 	}
 	const warnings = [...batch.warnings];
-	if (lifecycle.status === 'deprecated') {
+	if (status === 'deprecated') {
 		warnings.unshift({
 			code: 'version_deprecated',
 			message: `${content.ref} is deprecated: ${lifecycle.deprecationReason ?? 'no reason given'}`,
 			field: 'relation',
-			details: { successor: lifecycle.successorNumber === null ? null : `${ref.slug}@${lifecycle.successorNumber}` }
+			details: { successor: successor === null ? null : `${ref.slug}@${successor}` }
 		});
-	} else if (lifecycle.status === 'superseded') {
+	} else if (status === 'superseded') {
 		warnings.unshift({
 			code: 'version_superseded',
 			message: `${content.ref} has been superseded by a newer version; pinned results stay reproducible`,
@@ -397,7 +401,7 @@ export async function computeDistances(
 		relation: {
 			ref: content.ref,
 			digest: version.digest,
-			status: lifecycle.status,
+			status,
 			band: content.band,
 			population: content.population,
 			magnitude_system: content.magnitude_system,
