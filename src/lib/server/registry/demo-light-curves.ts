@@ -4,6 +4,7 @@ import { uploadLightCurves } from '../light-curves/uploads';
 import type { ObjectStorage } from '../storage/object-storage';
 import type { Actor } from './actor';
 import { createCalibratorSet, storeRevision } from './calibrator-sets';
+import { uniformStream } from './demo-noise';
 
 /**
  * The invented light-curve part of the demo: V and Ic time series of a dozen invented Lantern Cloud
@@ -22,17 +23,6 @@ const ABSOLUTE = {
 } as const;
 const SEMI_AMPLITUDE = { V: 0.34, Ic: 0.2 } as const;
 
-function noiseStream(seed: number) {
-	let state = seed >>> 0 || 1;
-	return () => {
-		// xorshift32, centred: plenty for invented photometric noise.
-		state ^= state << 13;
-		state ^= state >>> 17;
-		state ^= state << 5;
-		return (state >>> 0) / 4294967296 - 0.5;
-	};
-}
-
 export interface InventedCurveStar {
 	star: string;
 	periodDays: number;
@@ -47,7 +37,8 @@ export function inventedCurveStars(): InventedCurveStar[] {
 
 /** Sawtooth-like curves (a fundamental and its first harmonic), 70 nights over two seasons, 0.012 mag noise. */
 export function inventedLightCurveCsv(stars = inventedCurveStars()): string {
-	const noise = noiseStream(2026);
+	const uniform = uniformStream(2026);
+	const noise = () => uniform() - 0.5;
 	const lines = ['star,band,time,magnitude,error'];
 	for (const { star, periodDays } of stars) {
 		const logPeriod = Math.log10(periodDays);

@@ -6,6 +6,7 @@ import type { ObjectStorage } from '../storage/object-storage';
 import type { Actor } from './actor';
 import { createCalibratorSet, uploadRevision } from './calibrator-sets';
 import { seedLightCurveDemo } from './demo-light-curves';
+import { uniformStream } from './demo-noise';
 import { requestFit } from './fits';
 import { createProposal, editProposal, reviewProposal, submitProposal, withdrawProposal } from './proposals';
 import { withoutRegistryMail } from './notifications';
@@ -68,14 +69,7 @@ const LANTERN: TrueRelation[] = [
 const LANTERN_MU = 18.48;
 
 function gaussianStream(seed: number) {
-	let state = seed >>> 0 || 1;
-	const uniform = () => {
-		// xorshift32: plenty for invented noise.
-		state ^= state << 13;
-		state ^= state >>> 17;
-		state ^= state << 5;
-		return ((state >>> 0) + 0.5) / 4294967296;
-	};
+	const uniform = uniformStream(seed);
 	return () => Math.sqrt(-2 * Math.log(uniform())) * Math.cos(2 * Math.PI * uniform());
 }
 

@@ -3,7 +3,7 @@ import type { LightCurveAnalysisValues, LightCurveFill, ValueSource } from '../.
 import { CalibratorValueSource } from '../entities/calibrator-value-source.entity';
 import type { CalibratorRevisionEntity } from '../entities/calibrator-revision.entity';
 import { findUpload } from '../light-curves/uploads';
-import { resultToWire } from '../light-curves/wire';
+import { resultToWire, uploadToWire } from '../light-curves/wire';
 import { findVisibleRevision } from './calibrator-set-reads';
 import type { Actor } from './actor';
 import { RegistryError } from './errors';
@@ -129,22 +129,9 @@ export async function revisionLightCurves(em: EntityManager, reader: Actor | nul
 		digest: revision.digest,
 		isPublic: set.visibility === 'public',
 		analyses: [...byResult.values()].map(({ result, fields }) => {
-			const upload = result.upload;
-			return {
-				...resultToWire(result),
-				fields,
-				upload: {
-					id: upload.id,
-					source: {
-						sha256: upload.sourceSha256,
-						name: upload.sourceName,
-						media_type: upload.sourceMediaType,
-						bytes: upload.sourceBytes
-					},
-					time_reference: upload.timeReference,
-					time_offset_days: Number(upload.timeOffsetDays)
-				}
-			};
+			// Only the upload's file and time frame: who uploaded it and its other analyses stay private.
+			const { id, source, time_reference, time_offset_days } = uploadToWire(result.upload, null, null);
+			return { ...resultToWire(result), fields, upload: { id, source, time_reference, time_offset_days } };
 		})
 	};
 }
