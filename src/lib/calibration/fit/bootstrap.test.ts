@@ -37,7 +37,7 @@ describe('bootstrap bookkeeping', () => {
 		expect(ml?.level).toBe(0.9);
 	});
 
-	test('resamples only the stars kept by σ-clipping', () => {
+	test('resamples are clipped like the fit, so a gross outlier never widens the intervals', () => {
 		const points = SAMPLE.map((point, k) => (k === 3 ? { ...point, absMag: point.absMag + 3 } : point));
 		const fit = fitLinearRelation(points, {
 			method: 'ols',

@@ -27,7 +27,7 @@ export function bootstrapParameters(
 	withScatter: boolean,
 	options: BootstrapOptions,
 	refit: (indices: Int32Array) => number[] | null
-): BootstrapSummary {
+): Omit<BootstrapSummary, 'reclipped' | 'meanRejectedPerResample'> {
 	const level = options.level ?? DEFAULT_BOOTSTRAP_LEVEL;
 	const drawer = createIndexDrawer(options.seed);
 	const parameterCount = axes.length + (withScatter ? 1 : 0);

@@ -12,6 +12,7 @@ import {
 	intrinsicScatterError,
 	predict,
 	prepareFitData,
+	restrictedLogLikelihood,
 	qrSolver,
 	starVariance,
 	type FitData,
@@ -20,7 +21,7 @@ import {
 	type ScatterFit,
 	type WeightedSolver
 } from './model';
-import type { CalibratorPoint, LinearFitOptions, LinearFitResult } from './types';
+import type { BootstrapSummary, CalibratorPoint, LinearFitOptions, LinearFitResult } from './types';
 import { minimumStars, validateFitInput } from './validation';
 
 interface SubsetFit {
@@ -51,9 +52,19 @@ function fitSubset(data: FitData, model: FitModel, indices: number[], solver: We
 	if (model.method === 'ml_scatter') {
 		// σ_int is searched with the closed-form solver (fast, ample for locating a maximum); the
 		// coefficients at the adopted σ_int come from the QR solver like every other fit.
-		const search = fitIntrinsicScatter(data, model, indices, closedFormSolver);
+		const search = fitIntrinsicScatter(data, model, indices, closedFormSolver, model.scatterEstimator);
 		fit = search ? fitAtIntrinsicVariance(data, model, indices, search.intrinsicScatter ** 2, solver) : null;
-		scatter = search && fit ? { ...search, fit, logLikelihood: gaussianLogLikelihood(data, fit, indices) } : null;
+		scatter =
+			search && fit
+				? {
+						...search,
+						fit,
+						logLikelihood:
+							model.scatterEstimator === 'reml'
+								? restrictedLogLikelihood(data, model, fit, indices)
+								: gaussianLogLikelihood(data, fit, indices)
+					}
+				: null;
 	} else {
 		fit = fitAtIntrinsicVariance(data, model, indices, 0, solver);
 	}
@@ -124,7 +135,13 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 	if (fixedZeroPoint === null) axes.push('zero_point');
 	if (fixedSlope === null) axes.push('slope');
 	if (withMetallicity) axes.push('metallicity_term');
-	const model: FitModel = { method: options.method, axes, fixedZeroPoint, fixedSlope };
+	const model: FitModel = {
+		method: options.method,
+		axes,
+		fixedZeroPoint,
+		fixedSlope,
+		scatterEstimator: options.intrinsicScatterEstimator ?? 'ml'
+	};
 	const scaleByReducedChiSquare = options.method !== 'ols' && options.weightedCovariance === 'reduced_chi_square';
 
 	const data = prepareFitData(points, pivotLogPeriod, pivotFeh, withMetallicity);
@@ -169,9 +186,7 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 	}));
 
 	const bootstrap = options.bootstrap
-		? bootstrapParameters(clipped.kept, axes, options.method === 'ml_scatter', options.bootstrap, (indices) =>
-				refitResample(data, model, indices, closedFormSolver)
-			)
+		? bootstrapWholeProcedure(data, model, options, scaleByReducedChiSquare, options.bootstrap)
 		: null;
 
 	return {
@@ -195,6 +210,7 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 		intrinsicScatter: subset.scatter
 			? { value: subset.scatter.intrinsicScatter, error: intrinsicScatterError(subset.scatter) }
 			: null,
+		intrinsicScatterEstimator: subset.scatter ? (model.scatterEstimator ?? 'ml') : null,
 		chiSquare: subset.chiSquare,
 		degreesOfFreedom,
 		reducedChiSquare,
@@ -219,9 +235,66 @@ function spannedRange(points: readonly CalibratorPoint[], kept: number[], withMe
 	return { logPeriodMin, logPeriodMax, fehMin, fehMax };
 }
 
+/**
+ * The bootstrap replicates the whole estimate, clipping included (Efron & Tibshirani 1993, An
+ * Introduction to the Bootstrap, §6.2: the statistic is recomputed on every resample): each draw of
+ * n stars from all n is σ-clipped afresh before it is fitted, so a star's chance of being rejected is
+ * part of the spread. Without clipping each draw is fitted as it is.
+ */
+function bootstrapWholeProcedure(
+	data: FitData,
+	model: FitModel,
+	options: LinearFitOptions,
+	scaleByReducedChiSquare: boolean,
+	bootstrap: NonNullable<LinearFitOptions['bootstrap']>
+): BootstrapSummary {
+	const everyStar = data.stars.map((_, i) => i);
+	const clipping = options.clipping ?? null;
+	const withScatter = model.method === 'ml_scatter';
+	if (!clipping) {
+		const summary = bootstrapParameters(everyStar, model.axes, withScatter, bootstrap, (indices) =>
+			refitResample(data, model, indices, closedFormSolver)
+		);
+		return { ...summary, reclipped: false, meanRejectedPerResample: null };
+	}
+	const minimumKept = minimumStars(options);
+	let rejectedTotal = 0;
+	let clippedResamples = 0;
+	const summary = bootstrapParameters(everyStar, model.axes, withScatter, bootstrap, (indices) => {
+		const positions = Array.from(indices, (_, k) => String(k));
+		try {
+			const outcome = clipIteratively(
+				positions,
+				clipping,
+				minimumKept,
+				(kept) =>
+					fitSubset(
+						data,
+						model,
+						kept.map((k) => indices[k]),
+						closedFormSolver
+					),
+				(subset, k) => standardizedResidual(data, model, subset, scaleByReducedChiSquare, indices[k])
+			);
+			rejectedTotal += outcome.rejected.length;
+			clippedResamples++;
+			const { scatter, fit } = outcome.state;
+			return scatter ? [...fit.free, scatter.intrinsicScatter] : fit.free;
+		} catch (error) {
+			if (error instanceof CalibrationInputError) return null;
+			throw error;
+		}
+	});
+	return {
+		...summary,
+		reclipped: true,
+		meanRejectedPerResample: clippedResamples > 0 ? rejectedTotal / clippedResamples : null
+	};
+}
+
 function refitResample(data: FitData, model: FitModel, indices: Int32Array, solver: WeightedSolver): number[] | null {
 	if (model.method === 'ml_scatter') {
-		const scatter = fitIntrinsicScatter(data, model, indices, solver);
+		const scatter = fitIntrinsicScatter(data, model, indices, solver, model.scatterEstimator);
 		return scatter ? [...scatter.fit.free, scatter.intrinsicScatter] : null;
 	}
 	return fitAtIntrinsicVariance(data, model, indices, 0, solver)?.free ?? null;

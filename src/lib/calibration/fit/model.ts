@@ -1,4 +1,5 @@
 import type { CoefficientAxis } from '../types';
+import { determinant, inverse, Matrix } from 'ml-matrix';
 import { RankDeficientDesignError, solveLeastSquares } from './least-squares';
 import type { CalibratorPoint, FitMethod } from './types';
 
@@ -22,6 +23,8 @@ export interface FitModel {
 	axes: CoefficientAxis[];
 	fixedZeroPoint: number | null;
 	fixedSlope: number | null;
+	/** How ml_scatter estimates σ_int; ignored by the other methods. */
+	scatterEstimator?: IntrinsicScatterEstimator;
 }
 
 /** Fitted zero point, slope and γ (fixed ones filled in), in axis order for the free ones. */
@@ -272,11 +275,66 @@ export function gaussianLogLikelihood(data: FitData, fit: ModelFit, indices: Arr
 	return -0.5 * sum;
 }
 
+/**
+ * How σ_int is estimated: `ml` maximises the likelihood of the residuals, which is biased low by
+ * about (n − p)/n because the coefficients were fitted to the same stars; `reml` maximises the
+ * restricted likelihood of the residuals' p-dimensional complement instead (Patterson & Thompson
+ * 1971, Biometrika 58, 545), which for equal errors σ gives the unbiased σ_int² = Σr²/(n − p) − σ².
+ */
+export type IntrinsicScatterEstimator = 'ml' | 'reml';
+
+/** XᵀWX over the free axes, and the design rows it was built from. */
+function weightedNormalMatrix(data: FitData, model: FitModel, indices: ArrayLike<number>, weights: Float64Array) {
+	const p = model.axes.length;
+	const rows = Array.from({ length: indices.length }, (_, k) => designRow(data, model, indices[k]));
+	const normal = Matrix.zeros(p, p);
+	for (let k = 0; k < rows.length; k++) {
+		for (let a = 0; a < p; a++)
+			for (let b = 0; b < p; b++) normal.set(a, b, normal.get(a, b) + weights[k] * rows[k][a] * rows[k][b]);
+	}
+	return { rows, normal };
+}
+
+/**
+ * Σᵢ wᵢhᵢ with hᵢ = wᵢ·xᵢᵀ(XᵀWX)⁻¹xᵢ, the leverages of the weighted fit: the derivative of
+ * ln|XᵀWX| with respect to σ_int² is −Σ wᵢhᵢ.
+ */
+function weightedLeverageSum(
+	data: FitData,
+	model: FitModel,
+	indices: ArrayLike<number>,
+	weights: Float64Array
+): number {
+	const { rows, normal } = weightedNormalMatrix(data, model, indices, weights);
+	const inverted = inverse(normal);
+	let sum = 0;
+	for (let k = 0; k < rows.length; k++) {
+		const row = Matrix.rowVector(rows[k]);
+		sum += weights[k] * weights[k] * row.mmul(inverted).mmul(row.transpose()).get(0, 0);
+	}
+	return sum;
+}
+
+/**
+ * Restricted log-likelihood −½[Σ ln(2π vᵢ) + Σ rᵢ²/vᵢ + ln|XᵀWX|] at the fit's weights
+ * (Harville 1977, JASA 72, 320, up to a constant).
+ */
+export function restrictedLogLikelihood(
+	data: FitData,
+	model: FitModel,
+	fit: ModelFit,
+	indices: ArrayLike<number>
+): number {
+	const { normal } = weightedNormalMatrix(data, model, indices, fit.weights);
+	return gaussianLogLikelihood(data, fit, indices) - 0.5 * Math.log(determinant(normal));
+}
+
 export interface ScatterFit {
 	fit: ModelFit;
 	intrinsicScatter: number;
+	/** The maximised objective: ln L for `ml`, the restricted ln L for `reml`. */
 	logLikelihood: number;
-	/** Profile ln L as a function of σ_int, for error estimates. */
+	/** Profile of that objective as a function of σ_int, for error estimates. */
 	profile: (intrinsicScatter: number) => number;
 }
 
@@ -289,12 +347,15 @@ export interface ScatterFit {
  * bracket grown from the equal-error solution mean(rᵢ²) − mean(σ_M,i²), and the root is found by the Illinois
  * variant of regula falsi (Dowell & Jarratt 1971, BIT 11, 168), a fixed sequence of steps, so the
  * result is deterministic.
+ * With `reml` the restricted likelihood adds −½ln|XᵀWX|, whose derivative in t adds Σ wᵢhᵢ (the
+ * weighted leverages) to S(t); the root is found the same way.
  */
 export function fitIntrinsicScatter(
 	data: FitData,
 	model: FitModel,
 	indices: ArrayLike<number>,
-	solver: WeightedSolver
+	solver: WeightedSolver,
+	estimator: IntrinsicScatterEstimator = 'ml'
 ): ScatterFit | null {
 	const m = indices.length;
 	const atVariance = (t: number) => fitAtIntrinsicVariance(data, model, indices, t, solver);
@@ -306,17 +367,21 @@ export function fitIntrinsicScatter(
 			const residual = data.y[i] - predict(data, fit, i);
 			sum += w * (w * residual * residual - 1);
 		}
-		return sum;
+		return estimator === 'reml' ? sum + weightedLeverageSum(data, model, indices, fit.weights) : sum;
 	};
+	const objective = (fit: ModelFit) =>
+		estimator === 'reml'
+			? restrictedLogLikelihood(data, model, fit, indices)
+			: gaussianLogLikelihood(data, fit, indices);
 	const finish = (fit: ModelFit | null, t: number): ScatterFit | null =>
 		fit
 			? {
 					fit,
 					intrinsicScatter: Math.sqrt(t),
-					logLikelihood: gaussianLogLikelihood(data, fit, indices),
+					logLikelihood: objective(fit),
 					profile: (value) => {
 						const at = atVariance(value * value);
-						return at ? gaussianLogLikelihood(data, at, indices) : -Infinity;
+						return at ? objective(at) : -Infinity;
 					}
 				}
 			: null;

@@ -1,3 +1,4 @@
+import type { IntrinsicScatterEstimator } from './model';
 import type { Coefficients, Covariance, CoefficientAxis, Measured, ValidityRange } from '../types';
 
 /** One calibrator, with its absolute magnitude already computed by the caller. */
@@ -63,6 +64,8 @@ export interface LinearFitOptions {
 	bootstrap?: BootstrapOptions | null;
 	/** Default `absolute`. */
 	weightedCovariance?: WeightedCovarianceScaling;
+	/** How ml_scatter estimates σ_int; default `ml` (see IntrinsicScatterEstimator). */
+	intrinsicScatterEstimator?: IntrinsicScatterEstimator;
 }
 
 export interface StarResidual {
@@ -100,6 +103,10 @@ export interface BootstrapSummary {
 	intervals: AxisInterval[];
 	/** Sample covariance of the resampled coefficients over the free axes. */
 	covariance: Covariance;
+	/** True when every resample was σ-clipped afresh before it was fitted. */
+	reclipped: boolean;
+	/** Stars the clipping rejected per resample, on average (null without clipping). */
+	meanRejectedPerResample: number | null;
 }
 
 export interface LinearFitResult {
@@ -117,6 +124,8 @@ export interface LinearFitResult {
 	errors: { zeroPoint: number | null; slope: number | null; metallicityTerm: number | null };
 	/** σ_int with its error for ml_scatter; null otherwise. */
 	intrinsicScatter: Measured | null;
+	/** How σ_int was estimated (ml_scatter only; null otherwise). */
+	intrinsicScatterEstimator: IntrinsicScatterEstimator | null;
 	/** Σ rᵢ²/vᵢ with vᵢ the star's total variance; null when some vᵢ is 0. */
 	chiSquare: number | null;
 	degreesOfFreedom: number;
@@ -125,7 +134,7 @@ export interface LinearFitResult {
 	rSquared: number | null;
 	/** √(Σ rᵢ²/dof), unweighted (mag). */
 	residualSd: number;
-	/** Maximised ln L (ml_scatter only). */
+	/** Maximised ln L, or the restricted ln L with the `reml` estimator (ml_scatter only). */
 	logLikelihood: number | null;
 	starsTotal: number;
 	starsUsed: number;
