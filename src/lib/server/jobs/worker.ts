@@ -2,7 +2,13 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import config from '../../../../mikro-orm.config';
 import { logger } from '../logger';
 import { getObjectStorage } from '../storage/app-storage';
-import { startFitWorker, startHeldMailSender, startJobQueue, startLightCurveWorker, startStagingSweeper } from './queue';
+import {
+	startFitWorker,
+	startHeldMailSender,
+	startJobQueue,
+	startLightCurveWorker,
+	startStagingSweeper
+} from './queue';
 
 /**
  * A stand-alone worker for background fits: `node --import tsx src/lib/server/jobs/worker.ts` with

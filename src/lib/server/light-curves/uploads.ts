@@ -206,11 +206,9 @@ export function seriesOfUpload(upload: LightCurveUploadEntity, bytes: Uint8Array
 
 /** An upload of the caller (any upload for an admin), with its job and results; 404 otherwise. */
 export async function findUpload(em: EntityManager, actor: Actor, id: string) {
-	const upload = await em.findOne(
-		LightCurveUpload,
-		seesAllAsAdmin(actor) ? { id } : { id, uploadedBy: actor.id },
-		{ populate: ['uploadedBy', 'analysisJob'] }
-	);
+	const upload = await em.findOne(LightCurveUpload, seesAllAsAdmin(actor) ? { id } : { id, uploadedBy: actor.id }, {
+		populate: ['uploadedBy', 'analysisJob']
+	});
 	if (!upload) throw notFound(`light-curve upload ${id}`);
 	const results = await em.find(LightCurveResult, { upload: upload.id }, { orderBy: { position: 'asc' } });
 	return { upload, job: upload.analysisJob ?? null, results };
