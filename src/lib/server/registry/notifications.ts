@@ -83,7 +83,9 @@ export async function mailWatchers(
 	if (!embargoed) return watchers.map((watcher) => compose(watcher.email));
 	const insiders = await inOwningGroup(em, relation, watchers);
 	const inside = new Set(insiders.map((user) => user.id));
-	for (const outsider of watchers.filter((watcher) => !inside.has(watcher.id))) {
+	// Mail that is muted now (the demo seed) is not held for later either.
+	const outsiders = muted.getStore() ? [] : watchers.filter((watcher) => !inside.has(watcher.id));
+	for (const outsider of outsiders) {
 		const { subject, text } = compose(outsider.email);
 		em.create(HeldMail, { lifecycle, recipient: outsider, subject, text, sentAt: null });
 	}
