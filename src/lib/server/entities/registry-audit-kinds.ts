@@ -1,6 +1,7 @@
 /** Audit event kinds of the registry: every state change of sets, relations, proposals and versions. */
 export const REGISTRY_AUDIT_KINDS = [
 	'calibrator-set-created',
+	'calibrator-set-published',
 	'calibrator-revision-uploaded',
 	'relation-created',
 	'relation-watched',

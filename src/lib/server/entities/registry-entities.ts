@@ -1,6 +1,7 @@
 import { AnalysisJob } from './analysis-job.entity';
 import { CalibratorRevision } from './calibrator-revision.entity';
 import { CalibratorSet } from './calibrator-set.entity';
+import { HeldMail } from './held-mail.entity';
 import { ProposalComment } from './proposal-comment.entity';
 import { Proposal } from './proposal.entity';
 import { RelationVersion } from './relation-version.entity';
@@ -9,7 +10,7 @@ import { Relation } from './relation.entity';
 import { Setting } from './setting.entity';
 import { VersionLifecycle } from './version-lifecycle.entity';
 
-/** The registry's entities: calibrator sets, relations, versions, proposals, watches, jobs, settings. */
+/** The registry's entities: calibrator sets, relations, versions, proposals, watches, held mail, jobs, settings. */
 export const REGISTRY_ENTITIES = [
 	CalibratorSet,
 	CalibratorRevision,
@@ -20,5 +21,6 @@ export const REGISTRY_ENTITIES = [
 	Proposal,
 	ProposalComment,
 	RelationWatch,
+	HeldMail,
 	Setting
 ];

@@ -8,6 +8,7 @@ import {
 	fitQueueOf,
 	lightCurveQueueOf,
 	startFitWorker,
+	startHeldMailSender,
 	startJobQueue,
 	startLightCurveWorker,
 	startStagingSweeper
@@ -27,6 +28,7 @@ export function getAppJobQueue(): Promise<PgBoss> {
 			await startFitWorker(started, await getOrm());
 			await startLightCurveWorker(started, await getOrm(), getObjectStorage);
 			await startStagingSweeper(started, getObjectStorage);
+			await startHeldMailSender(started, await getOrm());
 		}
 		return started;
 	})().catch((error: unknown) => {

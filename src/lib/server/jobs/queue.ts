@@ -2,6 +2,7 @@ import PgBoss from 'pg-boss';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { logger } from '../logger';
 import { runFitJob, type FitQueue } from '../registry/fits';
+import { deliverHeldMail } from '../registry/notifications';
 import { runLightCurveJob, type LightCurveQueue } from '../light-curves/jobs';
 import type { ObjectStorage } from '../storage/object-storage';
 import { sweepStagedFiles } from '../storage/staging-sweep';
@@ -16,6 +17,9 @@ export const LIGHT_CURVE_QUEUE = 'candlebook-light-curves';
 export const STAGING_SWEEP_QUEUE = 'candlebook-staging-sweep';
 /** Hourly, at a minute past nothing else in particular; pg-boss runs a schedule once across all workers. */
 const STAGING_SWEEP_CRON = '17 * * * *';
+export const HELD_MAIL_QUEUE = 'candlebook-held-mail';
+/** Every ten minutes: mail held by an embargo goes out soon after the embargo's date passes. */
+const HELD_MAIL_CRON = '*/10 * * * *';
 
 export interface FitMessage {
 	jobId: string;
@@ -28,6 +32,7 @@ export async function startJobQueue(databaseUrl: string): Promise<PgBoss> {
 	await boss.createQueue(FIT_QUEUE);
 	await boss.createQueue(LIGHT_CURVE_QUEUE);
 	await boss.createQueue(STAGING_SWEEP_QUEUE);
+	await boss.createQueue(HELD_MAIL_QUEUE);
 	return boss;
 }
 
@@ -82,5 +87,14 @@ export async function startStagingSweeper(boss: PgBoss, storage: () => ObjectSto
 	return boss.work(STAGING_SWEEP_QUEUE, { batchSize: 1 }, async () => {
 		const swept = await sweepStagedFiles(storage());
 		logger.info(swept, 'staged upload files swept');
+	});
+}
+
+/** Sends mail held for watchers outside a group once the embargo that held it has ended. */
+export async function startHeldMailSender(boss: PgBoss, orm: MikroORM): Promise<string> {
+	await boss.schedule(HELD_MAIL_QUEUE, HELD_MAIL_CRON);
+	return boss.work(HELD_MAIL_QUEUE, { batchSize: 1 }, async () => {
+		const sent = await deliverHeldMail(orm.em.fork());
+		if (sent > 0) logger.info({ sent }, 'held mail sent after embargoes ended');
 	});
 }

@@ -2,7 +2,13 @@ import { MikroORM } from '@mikro-orm/postgresql';
 import config from '../../../../mikro-orm.config';
 import { logger } from '../logger';
 import { getObjectStorage } from '../storage/app-storage';
-import { startFitWorker, startJobQueue, startLightCurveWorker, startStagingSweeper } from './queue';
+import {
+	startFitWorker,
+	startHeldMailSender,
+	startJobQueue,
+	startLightCurveWorker,
+	startStagingSweeper
+} from './queue';
 
 /**
  * A stand-alone worker for background fits: `node --import tsx src/lib/server/jobs/worker.ts` with
@@ -16,7 +22,8 @@ async function main(): Promise<void> {
 	await startFitWorker(boss, orm);
 	await startLightCurveWorker(boss, orm, getObjectStorage);
 	await startStagingSweeper(boss, getObjectStorage);
-	logger.info('worker waiting for fits, light-curve analyses and the hourly staging sweep');
+	await startHeldMailSender(boss, orm);
+	logger.info('worker waiting for fits, light-curve analyses and the hourly staging sweep and held mail');
 	const stop = async () => {
 		await boss.stop({ graceful: true, timeout: 30_000 });
 		await orm.close(true);

@@ -14,7 +14,7 @@ import { AnalysisJob } from '../entities/analysis-job.entity';
 import { LightCurveResult } from '../entities/light-curve-result.entity';
 import { LightCurveUpload, type LightCurveUploadEntity } from '../entities/light-curve-upload.entity';
 import { User } from '../entities/user.entity';
-import type { Actor } from '../registry/actor';
+import { seesAllAsAdmin, type Actor } from '../registry/actor';
 import { notFound, RegistryError } from '../registry/errors';
 import { issuesToFieldErrors } from '../registry/upload-checks';
 import { contentAddress, type ObjectStorage } from '../storage/object-storage';
@@ -206,11 +206,9 @@ export function seriesOfUpload(upload: LightCurveUploadEntity, bytes: Uint8Array
 
 /** An upload of the caller (any upload for an admin), with its job and results; 404 otherwise. */
 export async function findUpload(em: EntityManager, actor: Actor, id: string) {
-	const upload = await em.findOne(
-		LightCurveUpload,
-		actor.roles.includes('admin') ? { id } : { id, uploadedBy: actor.id },
-		{ populate: ['uploadedBy', 'analysisJob'] }
-	);
+	const upload = await em.findOne(LightCurveUpload, seesAllAsAdmin(actor) ? { id } : { id, uploadedBy: actor.id }, {
+		populate: ['uploadedBy', 'analysisJob']
+	});
 	if (!upload) throw notFound(`light-curve upload ${id}`);
 	const results = await em.find(LightCurveResult, { upload: upload.id }, { orderBy: { position: 'asc' } });
 	return { upload, job: upload.analysisJob ?? null, results };

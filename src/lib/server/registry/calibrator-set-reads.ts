@@ -2,7 +2,7 @@ import type { EntityManager, FilterQuery } from '@mikro-orm/postgresql';
 import { CalibratorRevision, type CalibratorRevisionEntity } from '../entities/calibrator-revision.entity';
 import { CalibratorSet, type CalibratorSetEntity } from '../entities/calibrator-set.entity';
 import { GroupMembership } from '../entities/index';
-import { belongsTo, isAdmin, type Actor } from './actor';
+import { maySeePrivateOf, readsPrivate, seesAllAsAdmin, type Actor } from './actor';
 import { notFound } from './errors';
 
 /**
@@ -12,7 +12,7 @@ import { notFound } from './errors';
 
 export async function canSeeCalibratorSet(em: EntityManager, reader: Actor | null, set: CalibratorSetEntity) {
 	if (set.visibility === 'public') return true;
-	return belongsTo(em, reader, set.group.id);
+	return maySeePrivateOf(em, reader, set.group.id);
 }
 
 export async function findVisibleCalibratorSet(em: EntityManager, reader: Actor | null, slug: string) {
@@ -25,8 +25,8 @@ export async function visibleSetsFilter(
 	em: EntityManager,
 	reader: Actor | null
 ): Promise<FilterQuery<CalibratorSetEntity>> {
-	if (!reader) return { visibility: 'public' };
-	if (isAdmin(reader)) return {};
+	if (!readsPrivate(reader)) return { visibility: 'public' };
+	if (seesAllAsAdmin(reader)) return {};
 	const memberships = await em.find(GroupMembership, { user: reader.id }, { fields: ['group'] });
 	const groups = memberships.map((membership) => membership.group.id);
 	return groups.length ? { $or: [{ visibility: 'public' }, { group: { $in: groups } }] } : { visibility: 'public' };

@@ -24,7 +24,7 @@ import { CalibratorSet } from '../entities/calibrator-set.entity';
 import { Group } from '../entities/index';
 import type { RelationVisibility } from '../entities/relation.entity';
 import { contentAddress, type ObjectStorage } from '../storage/object-storage';
-import { belongsTo, type Actor } from './actor';
+import { belongsTo, isAdmin, standingInGroup, type Actor } from './actor';
 import { auditRegistry } from './audit';
 import { conflict, forbidden, invalid, notFound, RegistryError } from './errors';
 import { finishedAnalyses, recordValueSources, type LightCurveValuesRequest } from './light-curve-values';
@@ -70,6 +70,40 @@ export async function createCalibratorSet(em: EntityManager, actor: Actor, input
 		});
 		return set;
 	});
+}
+
+/**
+ * Changes who may see a set; a set's visibility can only widen. A group-private set may be made public
+ * by a manager of its group (or an admin); a public set never becomes private again, because versions
+ * built on it show its rows to every reader and must stay reproducible by them. The database refuses
+ * the narrowing too (trigger app_calibrator_set_visibility_only_widens).
+ */
+export async function setCalibratorSetVisibility(
+	em: EntityManager,
+	actor: Actor,
+	slug: string,
+	visibility: RelationVisibility
+) {
+	const set = await findCalibratorSet(em, slug);
+	const manager = isAdmin(actor) || (await standingInGroup(em, actor, set.group.id)) === 'manager';
+	if (!manager) {
+		if (set.visibility !== 'public' && !(await belongsTo(em, actor, set.group.id)))
+			throw notFound(`calibrator set called ${slug}`);
+		throw forbidden(`Only managers of ${set.group.slug} change who may see ${set.slug}.`);
+	}
+	if (set.visibility === visibility) return set;
+	if (set.visibility === 'public') {
+		throw new RegistryError(
+			409,
+			'visibility-only-widens',
+			`${set.slug} is public, and a set's visibility can only widen: relations built on it show its rows to every reader. Upload the data to a new group-private set instead.`,
+			[{ path: 'visibility', message: 'a public set cannot become group-private' }]
+		);
+	}
+	set.visibility = visibility;
+	await em.flush();
+	await auditRegistry(em, 'calibrator-set-published', actor, set.slug, { visibility });
+	return set;
 }
 
 export async function findCalibratorSet(em: EntityManager, slug: string) {

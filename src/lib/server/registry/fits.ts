@@ -8,7 +8,8 @@ import {
 } from '../../calibration/index';
 import { AnalysisJob, type AnalysisJobEntity } from '../entities/analysis-job.entity';
 import { CalibratorRevision } from '../entities/calibrator-revision.entity';
-import { isAdmin, type Actor } from './actor';
+import { CalibratorSet } from '../entities/calibrator-set.entity';
+import { seesAllAsAdmin, type Actor } from './actor';
 import { canSeeCalibratorSet } from './calibrator-set-reads';
 import { findRevision, revisionRows } from './calibrator-sets';
 import { notFound } from './errors';
@@ -161,10 +162,24 @@ function toJson(result: RefitResult): Record<string, unknown> {
 	return JSON.parse(JSON.stringify(result)) as Record<string, unknown>;
 }
 
+/**
+ * A job of the actor's (anyone's for an admin), or 404. A fit shows the rows of its calibrator set, so
+ * it is also hidden while the actor may not see that set (a token without read:private, someone who
+ * has left the set's group). Proposals add their own rule: see findVisibleFitJob.
+ */
 export async function findFitJob(em: EntityManager, actor: Actor, id: string) {
-	const job = await em.findOne(AnalysisJob, isAdmin(actor) ? { id } : { id, requestedBy: actor.id });
-	if (!job) throw notFound(`job ${id}`);
+	const job = await em.findOne(AnalysisJob, seesAllAsAdmin(actor) ? { id } : { id, requestedBy: actor.id });
+	if (!job || !(await fitSetVisible(em, actor, job))) throw notFound(`job ${id}`);
 	return job;
+}
+
+async function fitSetVisible(em: EntityManager, actor: Actor, job: AnalysisJobEntity): Promise<boolean> {
+	if (job.kind !== 'fit') return true;
+	const revision = await em.findOne(CalibratorRevision, fitInputOf(job).calibratorRevisionId, {
+		fields: ['calibratorSet']
+	});
+	const set = revision ? await em.findOne(CalibratorSet, revision.calibratorSet.id) : null;
+	return !!set && canSeeCalibratorSet(em, actor, set);
 }
 
 export function fitResultOf(job: AnalysisJobEntity): RefitResult | null {

@@ -3,31 +3,36 @@ import { problem } from '../api/problem';
 import { readJsonBody } from '../api/request-body';
 import { getConfig } from '../config';
 import type { z } from 'zod';
-import type { Actor } from './actor';
+import { readsPrivate, type Actor } from './actor';
 import { RegistryError } from './errors';
 
 /** Glue between the registry services and SvelteKit's API routes. */
 
-const toActor = (user: NonNullable<App.Locals['user']>): Actor => ({
+/**
+ * The only place a request's credential becomes an Actor: a token's scopes decide here whether the
+ * actor reaches group-private content (`readsPrivate`), and the services ask `maySeePrivateOf`.
+ */
+const toActor = (user: NonNullable<App.Locals['user']>, token: App.Locals['apiToken']): Actor => ({
 	id: user.id,
 	displayName: user.displayName,
-	roles: user.roles
+	roles: user.roles,
+	...(token ? { readsPrivate: token.scopes.includes('read:private') } : {})
 });
 
 /** The caller as an Actor; the access policy has already refused anonymous callers on these routes. */
 export function actorOf(locals: App.Locals): Actor {
 	if (!locals.user) throw new RegistryError(403, 'forbidden', 'Sign in, or send a valid API token.');
-	return toActor(locals.user);
+	return toActor(locals.user, locals.apiToken);
 }
 
 /**
  * The caller as a reader of possibly private content, or null for the public view. A token sees
- * private and embargoed content only with the read:private scope.
+ * private and embargoed content only with the read:private scope; without it, it reads as anonymous.
  */
 export function readerOf(locals: App.Locals): Actor | null {
 	if (!locals.user) return null;
-	if (locals.apiToken && !locals.apiToken.scopes.includes('read:private')) return null;
-	return toActor(locals.user);
+	const actor = toActor(locals.user, locals.apiToken);
+	return readsPrivate(actor) ? actor : null;
 }
 
 /** Runs a route body, answering a RegistryError as problem+json with its code (and any upload issues). */

@@ -24,15 +24,25 @@ import { ProposalComment, type ReviewDecision } from '../entities/proposal-comme
 import { Proposal, type ProposalEntity } from '../entities/proposal.entity';
 import { Relation, type RelationEntity } from '../entities/relation.entity';
 import { RelationVersion } from '../entities/relation-version.entity';
+import { VersionLifecycle } from '../entities/version-lifecycle.entity';
 import type { OutgoingMail } from '../mail/mailer';
-import { hasRole, isAdmin, type Actor } from './actor';
+import { belongsTo, hasRole, isAdmin, maySeePrivateOf, seesAllAsAdmin, type Actor } from './actor';
 import { auditRegistry } from './audit';
+import { canSeeCalibratorSet } from './calibrator-set-reads';
 import { revisionRows } from './calibrator-sets';
 import { conflict, forbidden, invalid, notFound, RegistryError } from './errors';
-import { fitResultOf } from './fits';
-import { decisionMail, deliver, reviewersOf, submittedMail, versionMail, watchersOf } from './notifications';
+import { findFitJob, fitResultOf } from './fits';
+import {
+	decisionMail,
+	deliver,
+	inOwningGroup,
+	mailWatchers,
+	reviewersOf,
+	submittedMail,
+	versionMail
+} from './notifications';
 import { canSeeRelation, currentVersionNumber, findVisibleRelation } from './relations';
-import { freezeVersion, latestVersionNumber } from './versions';
+import { freezeVersion, isEmbargoed, latestVersionNumber } from './versions';
 
 /**
  * Proposals and their review. Every command runs in one transaction that first locks the relation
@@ -81,7 +91,29 @@ async function usableFit(em: EntityManager, actor: Actor, relation: RelationEnti
 	if (problems.length > 0) throw invalid('The fit does not fit this relation.', problems);
 	const revisionId = (job.input as { calibratorRevisionId: string }).calibratorRevisionId;
 	const revision = await em.findOneOrFail(CalibratorRevision, revisionId, { populate: ['calibratorSet'] });
+	refuseHiddenRows(relation, revision.calibratorSet);
 	return { job, result, revision };
+}
+
+/**
+ * A version shows its calibrator rows (per-star points, reproduction, exports) to whoever may read it,
+ * so its set must be visible to all of them: a public relation needs a public set, and a group-private
+ * relation a public set or one of its own group's.
+ */
+function refuseHiddenRows(relation: RelationEntity, set: CalibratorRevisionEntity['calibratorSet']) {
+	if (set.visibility === 'public') return;
+	if (relation.visibility === 'public') {
+		throw invalid(
+			`The fit uses ${set.slug}, a calibrator set private to its group; versions of the public relation ${relation.slug} are public, so they must be built on a public set.`,
+			[{ path: 'fit', message: `fits the group-private calibrator set ${set.slug}; the relation is public` }]
+		);
+	}
+	if (set.group.id !== relation.group.id) {
+		throw invalid(
+			`The fit uses ${set.slug}, a calibrator set private to another group than the one owning ${relation.slug}.`,
+			[{ path: 'fit', message: `fits ${set.slug}, private to another group` }]
+		);
+	}
 }
 
 function identityOf(revision: CalibratorRevisionEntity) {
@@ -138,7 +170,7 @@ export async function createProposal(
 	const { job, result, revision } = await usableFit(em, actor, relation, input.fit);
 	// Building the content now refuses a fit that could never be frozen, before anyone reviews it.
 	contentFor(relation, result, revision, 1, [{ name: 'pending', orcid: null }], utcSeconds(new Date()));
-	checkEmbargo(relation, input.embargoUntil);
+	await checkEmbargo(em, actor, relation, input.embargoUntil);
 	const proposal = await em.transactional(async (tx) => {
 		const proposal = tx.create(Proposal, {
 			relation,
@@ -164,8 +196,18 @@ export async function createProposal(
 	return proposal;
 }
 
-function checkEmbargo(relation: RelationEntity, embargoUntil: Date | null | undefined) {
+async function checkEmbargo(
+	em: EntityManager,
+	actor: Actor,
+	relation: RelationEntity,
+	embargoUntil: Date | null | undefined
+) {
 	if (!embargoUntil) return;
+	// An embargo keeps the version inside the owning group, so only someone inside it may ask for one.
+	if (!(await belongsTo(em, actor, relation.group.id)))
+		throw invalid(`Only members of ${relation.group.slug} may embargo versions of ${relation.slug}.`, [
+			{ path: 'embargo_until', message: `you are not a member of ${relation.group.slug}` }
+		]);
 	if (relation.visibility !== 'public')
 		throw invalid('Only versions of public relations can be embargoed.', [
 			{ path: 'embargo_until', message: 'the relation is group-private already' }
@@ -269,7 +311,8 @@ async function runCommand(
 			);
 			proposal.versionNumber = versionNumber;
 			await tx.flush();
-			await freezeVersion(tx, relation, content, proposal.id, proposal.embargoUntil ?? null);
+			const version = await freezeVersion(tx, relation, content, proposal.id, proposal.embargoUntil ?? null);
+			const lifecycle = await tx.findOneOrFail(VersionLifecycle, version.id);
 			frozen = { ref: content.ref, version: versionNumber, digest: content.digest };
 			await auditRegistry(tx, 'proposal-approved', actor, proposal.id, {
 				relation: relation.slug,
@@ -277,9 +320,11 @@ async function runCommand(
 				approvals: decision.approvals
 			});
 			await auditRegistry(tx, 'version-frozen', actor, content.ref, { digest: content.digest, proposal: proposal.id });
-			for (const watcher of await watchersOf(tx, relation.id)) {
-				mails.push(versionMail(watcher.email, content.ref, content.digest, 'new'));
-			}
+			mails.push(
+				...(await mailWatchers(tx, relation, lifecycle, isEmbargoed(lifecycle), (to) =>
+					versionMail(to, content.ref, content.digest, 'new')
+				))
+			);
 		} else {
 			const kind = command === 'approve' ? 'proposal-approval-recorded' : COMMAND_AUDIT[command];
 			await auditRegistry(tx, kind, actor, proposal.id, {
@@ -305,8 +350,9 @@ async function mailsFor(
 	command: ProposalCommand,
 	comment: string
 ): Promise<OutgoingMail[]> {
+	const inGroup = await keptInGroup(em, relation, proposal);
 	if (command === 'submit') {
-		const reviewers = await reviewersOf(em, relation, proposal.author.id);
+		const reviewers = await reviewersOf(em, relation, proposal.author.id, inGroup);
 		return reviewers.map((reviewer) => submittedMail(reviewer.email, relation.slug, proposal.title, proposal.id));
 	}
 	const verbs: Partial<Record<ProposalCommand, string>> = {
@@ -317,6 +363,8 @@ async function mailsFor(
 	};
 	const verb = verbs[command];
 	if (!verb || proposal.author.id === actor.id) return [];
+	// An author who has left the group no longer hears of a proposal the group keeps to itself.
+	if (inGroup && (await inOwningGroup(em, relation, [proposal.author])).length === 0) return [];
 	return [decisionMail(proposal.author.email, relation.slug, proposal.title, actor.displayName, verb, comment)];
 }
 
@@ -335,7 +383,7 @@ async function applyEdit(
 	if (edit.title !== undefined) proposal.title = edit.title;
 	if (edit.rationale !== undefined) proposal.rationale = edit.rationale;
 	if (edit.embargoUntil !== undefined) {
-		checkEmbargo(relation, edit.embargoUntil);
+		await checkEmbargo(em, actor, relation, edit.embargoUntil);
 		proposal.embargoUntil = edit.embargoUntil;
 	}
 }
@@ -355,7 +403,28 @@ function snapshotOf(
 	};
 }
 
-/** Drafts are the author's own; anything else is visible to whoever may see the relation. */
+/**
+ * Whether the version a proposal produced or will produce is, for now, its group's alone: the relation
+ * is group-private, the version is (or is to be) under embargo, or the base version it is compared
+ * with is still under embargo (the comparison shows that version's coefficients).
+ */
+async function keptInGroup(em: EntityManager, relation: RelationEntity, proposal: ProposalEntity): Promise<boolean> {
+	if (relation.visibility !== 'public') return true;
+	const numbers = [proposal.versionNumber, proposal.baseVersion].filter((n): n is number => typeof n === 'number');
+	const lifecycles = numbers.length
+		? await em.find(VersionLifecycle, { relation: relation.id, number: { $in: numbers } })
+		: [];
+	if (lifecycles.some((lifecycle) => isEmbargoed(lifecycle))) return true;
+	// Not yet frozen: its own embargo date holds it back.
+	return !proposal.versionNumber && isEmbargoed({ embargoUntil: proposal.embargoUntil ?? null, releasedAt: null });
+}
+
+/**
+ * Who may see a proposal, its comparison, its plots, its fit and mail about it: drafts only their author
+ * (and admins); a proposal whose version is kept in the group only the group's members and admins
+ * (eligible reviewers are members) — everyone else is told it does not exist; the rest whoever may see
+ * the relation.
+ */
 async function canSeeProposal(
 	em: EntityManager,
 	actor: Actor | null,
@@ -363,8 +432,10 @@ async function canSeeProposal(
 	proposal: ProposalEntity
 ) {
 	if (!(await canSeeRelation(em, actor, relation))) return false;
-	if (proposal.state === 'draft') return !!actor && (proposal.author.id === actor.id || isAdmin(actor));
-	return true;
+	if (proposal.state === 'draft' && !(actor && (proposal.author.id === actor.id || seesAllAsAdmin(actor))))
+		return false;
+	if (!(await keptInGroup(em, relation, proposal))) return true;
+	return maySeePrivateOf(em, actor, relation.group.id);
 }
 
 export const editProposal = (em: EntityManager, actor: Actor, id: string, edit: EditInput) =>
@@ -427,11 +498,13 @@ export async function getProposal(em: EntityManager, actor: Actor | null, id: st
 		const content = version.content as unknown as RelationVersionContent;
 		const baseProposal = version.proposalId ? await em.findOne(Proposal, version.proposalId) : null;
 		base = { ...content, rationale: baseProposal?.rationale ?? '' };
-		const baseRevision = await em.findOne(CalibratorRevision, {
-			calibratorSet: { slug: content.calibrator_set.slug },
-			number: content.calibrator_set.revision
-		});
-		if (baseRevision) {
+		const baseRevision = await em.findOne(
+			CalibratorRevision,
+			{ calibratorSet: { slug: content.calibrator_set.slug }, number: content.calibrator_set.revision },
+			{ populate: ['calibratorSet'] }
+		);
+		// Rows of a set the reader may not see are never diffed for them.
+		if (baseRevision && (await canSeeCalibratorSet(em, actor, baseRevision.calibratorSet))) {
 			calibrators = diffCalibratorRevisions(revisionRows(baseRevision), revisionRows(revision));
 		}
 	}
@@ -479,4 +552,17 @@ export async function listProposals(em: EntityManager, actor: Actor, filter: Pro
 		visible.push(proposal);
 	}
 	return visible;
+}
+
+/**
+ * A fit job as `findFitJob` finds it, hidden as well when it backs a proposal the actor may not see
+ * (an embargoed proposal's fit shows the coefficients of the version it will become).
+ */
+export async function findVisibleFitJob(em: EntityManager, actor: Actor, id: string) {
+	const job = await findFitJob(em, actor, id);
+	const backing = await em.find(Proposal, { fit: job.id }, { populate: ['author', 'relation', 'relation.group'] });
+	for (const proposal of backing) {
+		if (!(await canSeeProposal(em, actor, proposal.relation, proposal))) throw notFound(`job ${id}`);
+	}
+	return job;
 }

@@ -4,7 +4,7 @@ import { Group } from '../entities/index';
 import { Relation, type AnchorType, type RelationEntity, type RelationVisibility } from '../entities/relation.entity';
 import { RelationWatch } from '../entities/relation-watch.entity';
 import { VersionLifecycle } from '../entities/version-lifecycle.entity';
-import { belongsTo, type Actor } from './actor';
+import { belongsTo, maySeePrivateOf, type Actor } from './actor';
 import { auditRegistry } from './audit';
 import { conflict, forbidden, invalid, notFound } from './errors';
 import { getSetting } from './settings';
@@ -67,7 +67,7 @@ export async function createRelation(em: EntityManager, actor: Actor, input: Cre
 /** Whether the actor may see the relation at all (group-private relations: members and admins). */
 export async function canSeeRelation(em: EntityManager, actor: Actor | null, relation: RelationEntity) {
 	if (relation.visibility === 'public') return true;
-	return belongsTo(em, actor, relation.group.id);
+	return maySeePrivateOf(em, actor, relation.group.id);
 }
 
 /** The relation, or 404 — also when it exists but the actor may not see it (its name is not leaked). */

@@ -5,6 +5,7 @@ import { CalibratorRevision } from '../entities/calibrator-revision.entity';
 import { Proposal } from '../entities/proposal.entity';
 import type { RelationVersionEntity } from '../entities/relation-version.entity';
 import type { Actor } from './actor';
+import { canSeeCalibratorSet } from './calibrator-set-reads';
 import { revisionRows } from './calibrator-sets';
 import { RegistryError } from './errors';
 import { findVisibleRelation } from './relations';
@@ -39,11 +40,14 @@ async function comparable(em: EntityManager, version: RelationVersionEntity) {
 	return { ...content, rationale: proposal?.rationale ?? '' };
 }
 
-async function revisionOf(em: EntityManager, content: RelationVersionContent) {
-	return em.findOne(CalibratorRevision, {
-		calibratorSet: { slug: content.calibrator_set.slug },
-		number: content.calibrator_set.revision
-	});
+/** The revision a version was fitted from, when the caller may see its set (its rows are diffed). */
+async function revisionOf(em: EntityManager, actor: Actor | null, content: RelationVersionContent) {
+	const revision = await em.findOne(
+		CalibratorRevision,
+		{ calibratorSet: { slug: content.calibrator_set.slug }, number: content.calibrator_set.revision },
+		{ populate: ['calibratorSet'] }
+	);
+	return revision && (await canSeeCalibratorSet(em, actor, revision.calibratorSet)) ? revision : null;
 }
 
 export async function diffVersions(
@@ -57,7 +61,7 @@ export async function diffVersions(
 	const a = await versionFor(em, actor, slug, from, 'from');
 	const b = await versionFor(em, actor, slug, to, 'to');
 	const [base, proposed] = [await comparable(em, a), await comparable(em, b)];
-	const [baseRevision, proposedRevision] = [await revisionOf(em, base), await revisionOf(em, proposed)];
+	const [baseRevision, proposedRevision] = [await revisionOf(em, actor, base), await revisionOf(em, actor, proposed)];
 	return {
 		from: { ref: base.ref, digest: a.digest },
 		to: { ref: proposed.ref, digest: b.digest },

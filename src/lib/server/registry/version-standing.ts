@@ -1,5 +1,5 @@
 import type { VersionStatus } from '../entities/version-lifecycle.entity';
-import { isAdmin, type Actor } from './actor';
+import { readsPrivate, seesAllAsAdmin, type Actor } from './actor';
 
 /**
  * How a relation's versions stand for one viewer. An embargoed version is invisible to whoever may not
@@ -34,13 +34,16 @@ export function relationState(versionCount: number, hasCurrent: boolean): Relati
 	return versionCount === 0 ? 'proposed' : 'retired';
 }
 
-/** The viewer as the catalogue's SQL needs it: null id for the public view. */
+/**
+ * The viewer as the catalogue's SQL needs it: null id for the public view, which is also what a token
+ * without read:private gets (see maySeePrivateOf in actor.ts).
+ */
 export interface Viewer {
 	userId: string | null;
 	admin: boolean;
 }
 
 export const viewerOf = (actor: Actor | null): Viewer => ({
-	userId: actor?.id ?? null,
-	admin: actor ? isAdmin(actor) : false
+	userId: readsPrivate(actor) ? actor.id : null,
+	admin: seesAllAsAdmin(actor)
 });

@@ -10,10 +10,10 @@ import {
 	type VersionLifecycleEntity,
 	type VersionStatus
 } from '../entities/version-lifecycle.entity';
-import { belongsTo, hasRole, isAdmin, standingInGroup, type Actor } from './actor';
+import { hasRole, isAdmin, maySeePrivateOf, standingInGroup, type Actor } from './actor';
 import { auditRegistry } from './audit';
 import { conflict, forbidden, invalid, notFound } from './errors';
-import { deliver, versionMail, watchersOf } from './notifications';
+import { deliverHeldMail, deliver, mailWatchers, versionMail } from './notifications';
 import { findVisibleRelation } from './relations';
 import { standingsFor } from './version-standing';
 
@@ -84,7 +84,7 @@ export async function canSeeVersion(
 	lifecycle: VersionLifecycleEntity
 ): Promise<boolean> {
 	if (!isEmbargoed(lifecycle)) return true;
-	return belongsTo(em, actor, relation.group.id);
+	return maySeePrivateOf(em, actor, relation.group.id);
 }
 
 export async function findVersion(em: EntityManager, actor: Actor | null, slug: string, number: number) {
@@ -105,7 +105,7 @@ export async function findVersion(em: EntityManager, actor: Actor | null, slug: 
 export async function listVersions(em: EntityManager, actor: Actor | null, slug: string) {
 	const relation = await findVisibleRelation(em, actor, slug);
 	const all = await em.find(VersionLifecycle, { relation }, { orderBy: { number: 'asc' } });
-	const member = await belongsTo(em, actor, relation.group.id);
+	const member = await maySeePrivateOf(em, actor, relation.group.id);
 	const lifecycles = all.filter((lifecycle) => member || !isEmbargoed(lifecycle));
 	return { relation, lifecycles, standings: standingsFor(lifecycles) };
 }
@@ -156,9 +156,11 @@ export async function deprecateVersion(
 			successor: input.successor
 		});
 		const version = await tx.findOneOrFail(RelationVersion, { relation: relation.id, number });
-		for (const watcher of await watchersOf(tx, relation.id)) {
-			mails.push(versionMail(watcher.email, `${slug}@${number}`, version.digest, 'deprecated', input.reason));
-		}
+		mails.push(
+			...(await mailWatchers(tx, relation, lifecycle, isEmbargoed(lifecycle), (to) =>
+				versionMail(to, `${slug}@${number}`, version.digest, 'deprecated', input.reason)
+			))
+		);
 		return lifecycle;
 	});
 	await deliver(mails);
@@ -177,5 +179,7 @@ export async function releaseVersion(em: EntityManager, actor: Actor, slug: stri
 	await auditRegistry(em, 'version-released', actor, `${slug}@${number}`, {
 		embargoUntil: lifecycle.embargoUntil?.toISOString() ?? null
 	});
+	// Watchers outside the group now hear of the version (and of anything else whose embargo ended).
+	await deliverHeldMail(em.fork());
 	return lifecycle;
 }

@@ -13,9 +13,15 @@ import { orFormFailure, orPageError } from '$lib/server/calibrator-pages/page-er
 import { getConfig } from '$lib/server/config';
 import { AnalysisJob } from '$lib/server/entities/analysis-job.entity';
 import { getAppFitQueue } from '$lib/server/jobs/app-queue';
-import { findFitJob, fitInputOf, requestFit } from '$lib/server/registry/fits';
+import { fitInputOf, requestFit } from '$lib/server/registry/fits';
 import { actorOf, uuidParam } from '$lib/server/registry/http';
-import { createProposal, editProposal, getProposal, submitProposal } from '$lib/server/registry/proposals';
+import {
+	createProposal,
+	editProposal,
+	findVisibleFitJob,
+	getProposal,
+	submitProposal
+} from '$lib/server/registry/proposals';
 import { findVisibleRelation } from '$lib/server/registry/relations';
 import { FitRequestSchema } from '$lib/server/registry/schemas';
 import { jobToWire } from '$lib/server/registry/wire';
@@ -32,7 +38,7 @@ const anchorOf = (anchorType: string): FitAnchor => (anchorType === 'parallax' ?
 const EDITABLE = new Set(['draft', 'changes_requested']);
 
 async function fitView(em: EntityManager, locals: App.Locals, jobId: string) {
-	const job = await findFitJob(em, actorOf(locals), uuidParam(jobId, 'fit'));
+	const job = await findVisibleFitJob(em, actorOf(locals), uuidParam(jobId, 'fit'));
 	return { job: jobToWire(job), request: fitInputOf(job).request as unknown as FitRequestBody };
 }
 
