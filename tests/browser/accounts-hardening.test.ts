@@ -23,6 +23,8 @@ import { capturedMailsTo, capturedMailTo } from './support/captured-mail';
 const shared = `http://127.0.0.1:${process.env.CANDLEBOOK_TEST_PORT ?? 4173}`;
 const PASSWORD = 'browser hardening password';
 const started = performance.now();
+// Several browsers and a second app instance per test, on a machine shared with other work.
+test.describe.configure({ timeout: 90_000 });
 let second: string;
 let child: ChildProcess;
 let orm: MikroORM;
@@ -290,123 +292,137 @@ test('reset requests are throttled per address and per client, with the same neu
 	await expect.poll(() => orm.em.fork().count(OneTimeLink, { user: other.id, purpose: 'password-reset' })).toBe(1);
 });
 
-test('sign-in, reset, e-mail change and adding a member answer known and unknown addresses alike', async () => {
-	const known = await Promise.all(
-		Array.from({ length: 10 }, (_, i) =>
-			createPerson(orm, { label: `known ${i}`, roles: ['reader'], password: PASSWORD })
-		)
-	);
+test.describe('known and unknown addresses get the same status and body, in alike time', () => {
+	// Ten rounds of HTTP requests each, on a machine shared with other work.
+	test.describe.configure({ timeout: 120_000 });
+	let known: { email: string }[];
 	const stranger = (i: number) => `${uniqueSlug(`stranger-${i}`)}@browser.test`;
 
-	await expectAlike(
-		'sign-in over HTTP',
-		async (i) => ({
-			address: known[i].email,
-			answer: await postAction(
-				second,
-				'/sign-in',
-				{ email: known[i].email, password: 'not it' },
-				{ 'x-forwarded-for': freshClient() }
+	test.beforeAll(async () => {
+		known = await Promise.all(
+			Array.from({ length: 10 }, (_, i) =>
+				createPerson(orm, { label: `known ${i}`, roles: ['reader'], password: PASSWORD })
 			)
-		}),
-		async (i) => {
-			const address = stranger(i);
-			return {
-				address,
+		);
+	});
+
+	test('sign-in', async () => {
+		await expectAlike(
+			'sign-in over HTTP',
+			async (i) => ({
+				address: known[i].email,
 				answer: await postAction(
 					second,
 					'/sign-in',
-					{ email: address, password: 'not it' },
+					{ email: known[i].email, password: 'not it' },
 					{ 'x-forwarded-for': freshClient() }
 				)
-			};
-		}
-	);
-
-	await expectAlike(
-		'password reset over HTTP',
-		async (i) => ({
-			address: known[i].email,
-			answer: await postAction(
-				second,
-				'/reset-password',
-				{ email: known[i].email },
-				{ 'x-forwarded-for': freshClient() }
-			)
-		}),
-		async (i) => {
-			const address = stranger(i);
-			return {
-				address,
-				answer: await postAction(second, '/reset-password', { email: address }, { 'x-forwarded-for': freshClient() })
-			};
-		}
-	);
-
-	const mover = await createPerson(orm, { label: 'mover', roles: ['reader'], password: PASSWORD });
-	const moverCookie = { cookie: `candlebook_session=${await createSessionCookie(orm, mover.id)}` };
-	await expectAlike(
-		'e-mail change over HTTP',
-		async (i) => ({
-			address: known[i].email,
-			answer: await postAction(second, '/account?/email', { email: known[i].email }, moverCookie)
-		}),
-		async (i) => {
-			const address = stranger(i);
-			return { address, answer: await postAction(second, '/account?/email', { email: address }, moverCookie) };
-		}
-	);
-
-	const group = await createGroupRow(orm, uniqueSlug('hardening'));
-	const manager = await createPerson(orm, {
-		label: 'manager',
-		roles: ['reader'],
-		groups: [{ group, standing: 'manager' }]
+			}),
+			async (i) => {
+				const address = stranger(i);
+				return {
+					address,
+					answer: await postAction(
+						second,
+						'/sign-in',
+						{ email: address, password: 'not it' },
+						{ 'x-forwarded-for': freshClient() }
+					)
+				};
+			}
+		);
 	});
-	const managerCookie = { cookie: `candlebook_session=${await createSessionCookie(orm, manager.id)}` };
-	const invited: string[] = [];
-	await expectAlike(
-		'adding a member (form) over HTTP',
-		async (i) => ({
-			address: known[i].email,
-			answer: await postAction(second, `/groups/${group}?/addMember`, { email: known[i].email }, managerCookie)
-		}),
-		async (i) => {
-			const address = stranger(i);
-			invited.push(address);
-			return {
-				address,
-				answer: await postAction(second, `/groups/${group}?/addMember`, { email: address }, managerCookie)
-			};
-		}
-	);
 
-	const bearer = await createBearerToken(orm, manager.id, ['write']);
-	const apiAdd = async (email: string) => {
-		const t0 = performance.now();
-		const response = await fetch(`${second}/api/v1/groups/${group}/members`, {
-			method: 'POST',
-			headers: { authorization: `Bearer ${bearer}`, 'content-type': 'application/json' },
-			body: JSON.stringify({ email, standing: 'member' })
+	test('password reset request', async () => {
+		await expectAlike(
+			'password reset over HTTP',
+			async (i) => ({
+				address: known[i].email,
+				answer: await postAction(
+					second,
+					'/reset-password',
+					{ email: known[i].email },
+					{ 'x-forwarded-for': freshClient() }
+				)
+			}),
+			async (i) => {
+				const address = stranger(i);
+				return {
+					address,
+					answer: await postAction(second, '/reset-password', { email: address }, { 'x-forwarded-for': freshClient() })
+				};
+			}
+		);
+	});
+
+	test('e-mail change', async () => {
+		const mover = await createPerson(orm, { label: 'mover', roles: ['reader'], password: PASSWORD });
+		const moverCookie = { cookie: `candlebook_session=${await createSessionCookie(orm, mover.id)}` };
+		await expectAlike(
+			'e-mail change over HTTP',
+			async (i) => ({
+				address: known[i].email,
+				answer: await postAction(second, '/account?/email', { email: known[i].email }, moverCookie)
+			}),
+			async (i) => {
+				const address = stranger(i);
+				return { address, answer: await postAction(second, '/account?/email', { email: address }, moverCookie) };
+			}
+		);
+	});
+
+	test('adding a group member, by form and over the API; an unknown address is mailed an invitation', async () => {
+		const group = await createGroupRow(orm, uniqueSlug('hardening'));
+		const manager = await createPerson(orm, {
+			label: 'manager',
+			roles: ['reader'],
+			groups: [{ group, standing: 'manager' }]
 		});
-		const body = await response.text();
-		return { httpStatus: response.status, status: response.status, body, ms: performance.now() - t0 };
-	};
-	await expectAlike(
-		'adding a member (API) over HTTP',
-		async (i) => ({ address: known[i].email, answer: await apiAdd(known[i].email) }),
-		async (i) => {
-			const address = stranger(i);
-			invited.push(address);
-			return { address, answer: await apiAdd(address) };
-		}
-	);
-	expect((await apiAdd(stranger(99))).httpStatus).toBe(201);
+		const managerCookie = { cookie: `candlebook_session=${await createSessionCookie(orm, manager.id)}` };
+		const invited: string[] = [];
+		await expectAlike(
+			'adding a member (form) over HTTP',
+			async (i) => ({
+				address: known[i].email,
+				answer: await postAction(second, `/groups/${group}?/addMember`, { email: known[i].email }, managerCookie)
+			}),
+			async (i) => {
+				const address = stranger(i);
+				invited.push(address);
+				return {
+					address,
+					answer: await postAction(second, `/groups/${group}?/addMember`, { email: address }, managerCookie)
+				};
+			}
+		);
 
-	// Each unknown address was invited into the group by mail.
-	for (const address of [invited[0], invited.at(-1)!]) {
-		const invitation = await capturedMailTo(address);
-		expect(invitation.subject).toBe('You are invited to Candlebook');
-		expect(invitation.text).toMatch(/\/invitation\?token=[a-z0-9]+/);
-	}
+		const bearer = await createBearerToken(orm, manager.id, ['write']);
+		const apiAdd = async (email: string) => {
+			const t0 = performance.now();
+			const response = await fetch(`${second}/api/v1/groups/${group}/members`, {
+				method: 'POST',
+				headers: { authorization: `Bearer ${bearer}`, 'content-type': 'application/json' },
+				body: JSON.stringify({ email, standing: 'member' })
+			});
+			const body = await response.text();
+			return { httpStatus: response.status, status: response.status, body, ms: performance.now() - t0 };
+		};
+		await expectAlike(
+			'adding a member (API) over HTTP',
+			async (i) => ({ address: known[i].email, answer: await apiAdd(known[i].email) }),
+			async (i) => {
+				const address = stranger(i);
+				invited.push(address);
+				return { address, answer: await apiAdd(address) };
+			}
+		);
+		expect((await apiAdd(stranger(99))).httpStatus).toBe(201);
+
+		// Each unknown address was invited into the group by mail.
+		for (const address of [invited[0], invited.at(-1)!]) {
+			const invitation = await capturedMailTo(address);
+			expect(invitation.subject).toBe('You are invited to Candlebook');
+			expect(invitation.text).toMatch(/\/invitation\?token=[a-z0-9]+/);
+		}
+	});
 });
