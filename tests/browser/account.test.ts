@@ -1,7 +1,6 @@
-import { readdirSync, readFileSync } from 'node:fs';
-import { join } from 'node:path';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { expect, test } from '@playwright/test';
+import { capturedMailTo } from './support/captured-mail';
 import { createGroupRow, createPerson, openOrm, uniqueSlug } from './support/accounts';
 
 const PASSWORD = 'browser test password';
@@ -74,24 +73,6 @@ test('the sign-in form works without JavaScript', async ({ browser }) => {
 	await expect(page.getByRole('heading', { level: 1 })).toHaveText(person.displayName);
 	await context.close();
 });
-
-/** The newest captured message to an address, from the folder the local fake SMTP server writes. */
-async function capturedMailTo(address: string): Promise<{ subject: string; text: string }> {
-	const dir = process.env.CANDLEBOOK_MAIL_CAPTURE_DIR;
-	if (!dir) throw new Error('CANDLEBOOK_MAIL_CAPTURE_DIR is not set: run browser tests through `npm test`');
-	for (let attempt = 0; attempt < 50; attempt++) {
-		const found = readdirSync(dir)
-			.sort()
-			.reverse()
-			.map(
-				(name) => JSON.parse(readFileSync(join(dir, name), 'utf8')) as { to: string[]; subject: string; text: string }
-			)
-			.find((mail) => mail.to.includes(address));
-		if (found) return found;
-		await new Promise((resolve) => setTimeout(resolve, 100));
-	}
-	throw new Error(`no mail to ${address}`);
-}
 
 test('an admin invites someone; the mail is on the captured-mail page; its link sets a password', async ({
 	browser

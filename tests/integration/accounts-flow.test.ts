@@ -19,7 +19,7 @@ import { authenticateToken, createToken, revokeToken } from '../../src/lib/serve
 import { luciaFor } from '../../src/lib/server/auth/lucia';
 import { hashSecret } from '../../src/lib/server/auth/secrets';
 import { startSession, validateSessionToken } from '../../src/lib/server/auth/session';
-import { SignInThrottle } from '../../src/lib/server/auth/throttle';
+import { AttemptThrottle, signInThrottle } from '../../src/lib/server/auth/throttle';
 import { ApiToken, AuditEvent, OneTimeLink, Session, User } from '../../src/lib/server/entities/index';
 import { startMailCatcher, type MailCatcher } from '../../src/lib/server/mail/capture-server';
 import type { CapturedMail } from '../../src/lib/server/mail/captured-mail';
@@ -96,11 +96,11 @@ describe('invitation over real SMTP', () => {
 		const token = linkToken(message, '/invitation');
 
 		// Before the password is set, the account cannot sign in.
-		expect((await checkPassword(em(), email, PASSWORD, '10.1.0.1', new SignInThrottle())).ok).toBe(false);
+		expect((await checkPassword(em(), email, PASSWORD, '10.1.0.1', signInThrottle)).ok).toBe(false);
 		expect(await acceptInvitation(em(), token, PASSWORD, AUDIT)).not.toBeNull();
 		expect(await acceptInvitation(em(), token, 'another password entirely', AUDIT)).toBeNull();
 
-		const signedIn = await checkPassword(em(), email, PASSWORD, '10.1.0.1', new SignInThrottle());
+		const signedIn = await checkPassword(em(), email, PASSWORD, '10.1.0.1', signInThrottle);
 		expect(signedIn.ok).toBe(true);
 		const lucia = luciaFor(orm);
 		const { token: cookie } = await startSession(lucia, user.id, { userAgent: 'test', clientAddress: '10.1.0.1' });
@@ -125,7 +125,7 @@ describe('password reset over real SMTP', () => {
 
 		expect(await resetPassword(em(), token, 'the brand new password', AUDIT)).not.toBeNull();
 		expect(await resetPassword(em(), token, 'a third password here', AUDIT)).toBeNull();
-		const throttle = new SignInThrottle();
+		const throttle = signInThrottle;
 		expect((await checkPassword(em(), user.email, PASSWORD, '10.1.0.2', throttle)).ok).toBe(false);
 		expect((await checkPassword(em(), user.email, 'the brand new password', '10.1.0.2', throttle)).ok).toBe(true);
 		expect((await validateSessionToken(lucia, cookie)).session).toBeNull();
@@ -139,7 +139,7 @@ describe('password reset over real SMTP', () => {
 		const token = linkToken(await mail.waitFor(resetMailTo(user.email)), '/reset-password/new');
 		await em().nativeUpdate(OneTimeLink, { id: hashSecret(token) }, { expiresAt: new Date(Date.now() - 1000) });
 		expect(await resetPassword(em(), token, 'too late a password', AUDIT)).toBeNull();
-		expect((await checkPassword(em(), user.email, PASSWORD, '10.1.0.3', new SignInThrottle())).ok).toBe(true);
+		expect((await checkPassword(em(), user.email, PASSWORD, '10.1.0.3', signInThrottle)).ok).toBe(true);
 	});
 
 	test('an unknown address gets the same answer and no link', async () => {
@@ -190,7 +190,7 @@ describe('suspension', () => {
 		const { token: cookie } = await startSession(lucia, user.id, { userAgent: null, clientAddress: null });
 		const { secret } = await createToken(em(), user.id, { name: 's', scopes: [], lifetimeDays: null }, AUDIT);
 		await setSuspended(em(), user.id, true, AUDIT);
-		expect(await checkPassword(em(), user.email, PASSWORD, '10.3.0.1', new SignInThrottle())).toEqual({
+		expect(await checkPassword(em(), user.email, PASSWORD, '10.3.0.1', signInThrottle)).toEqual({
 			ok: false,
 			reason: 'invalid'
 		});
@@ -262,7 +262,7 @@ describe('sessions', () => {
 describe('abuse limits and audit', () => {
 	test('unknown account and wrong password answer alike; repeated failures are throttled with a clear message', async () => {
 		const user = await activeUser('target');
-		const throttle = new SignInThrottle({ perAccount: 3, perAddress: 100, windowMs: 60_000 });
+		const throttle = new AttemptThrottle('sign-in-test', { perAccount: 3, perAddress: 100, windowMs: 60_000 });
 		const unknown = await checkPassword(em(), unique('ghost'), PASSWORD, '10.2.0.1', throttle);
 		const wrong = await checkPassword(em(), user.email, 'not the password', '10.2.0.1', throttle);
 		expect(unknown).toEqual(wrong);

@@ -81,16 +81,22 @@ export const actions: Actions = {
 		const user = requireUser();
 		const parsed = PasswordChangeSchema.safeParse(textFields(await event.request.formData()));
 		if (!parsed.success) return fail(400, { section: 'password', errors: formErrors(parsed.error) });
-		const changed = await changePassword(
+		const change = await changePassword(
 			event.locals.em,
 			user.id,
 			parsed.data.current,
 			parsed.data.password,
-			auditContext(event)
+			auditContext(event),
+			event.locals.session?.id ?? null
 		);
-		if (!changed)
+		if (!change.changed)
 			return fail(400, { section: 'password', errors: { current: ['That is not your current password.'] } });
-		return { section: 'password', saved: true };
+		return {
+			section: 'password',
+			saved: true,
+			sessionsEnded: change.sessionsEnded,
+			tokensRevoked: change.tokensRevoked
+		};
 	},
 
 	createToken: async (event) => {

@@ -15,7 +15,7 @@ const SignInSchema = z.object({
 
 const NOTICES: Record<string, string> = {
 	welcome: 'Your password is set. Sign in to continue.',
-	reset: 'Your new password is set, and every earlier session has ended. Sign in again.',
+	reset: 'Your new password is set. Every session has ended and your API tokens are revoked: sign in again.',
 	email: 'Your new address is confirmed. Sign in with it.'
 };
 

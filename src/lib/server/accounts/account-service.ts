@@ -1,5 +1,6 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import {
+	ApiToken,
 	Group,
 	GroupMembership,
 	OneTimeLink,
@@ -12,10 +13,10 @@ import {
 } from '../entities/index';
 import { hashPassword, verifyPassword } from '../auth/password';
 import { generateSecret, hashSecret } from '../auth/secrets';
-import { describeWait, signInThrottle, type SignInThrottle } from '../auth/throttle';
+import { describeWait, passwordResetThrottle, signInThrottle, type AttemptThrottle } from '../auth/throttle';
 import { logger } from '../logger';
 import { sendMail } from '../mail/mailer';
-import { emailChangeMail, invitationMail, passwordResetMail } from '../mail/messages';
+import { addressInUseMail, emailChangeMail, invitationMail, passwordResetMail } from '../mail/messages';
 import { recordAudit, type AuditContext } from './audit';
 import type { ProfileInput } from './schemas';
 
@@ -86,6 +87,13 @@ export async function invite(
 	audit: AuditContext,
 	sendLink = true
 ) {
+	const user = await createInvitedAccount(em, input, audit);
+	const link = sendLink ? await sendInvitation(em, user, origin, audit) : null;
+	return { user, link };
+}
+
+/** The account an invitation creates: no password yet, with its roles and groups. */
+async function createInvitedAccount(em: EntityManager, input: Invitation, audit: AuditContext) {
 	const email = input.email.toLowerCase();
 	if (await em.count(User, { email })) throw new AccountError('Someone with that address has an account already.');
 	const groups = input.groups.length ? await em.find(Group, { slug: { $in: input.groups.map((g) => g.slug) } }) : [];
@@ -103,8 +111,48 @@ export async function invite(
 	}
 	await em.flush();
 	await recordAudit(em, 'user-created', { ...audit, subject: user.id, detail: { email, roles: user.roles } });
-	const link = sendLink ? await sendInvitation(em, user, origin, audit) : null;
-	return { user, link };
+	return user;
+}
+
+/**
+ * Invites someone a group manager added by an address that has no account: a reader account in that
+ * group, its invitation mailed after the answer (as `delivery`), so the answer takes as long as adding
+ * someone who has an account.
+ */
+export async function inviteToGroup(
+	em: EntityManager,
+	email: string,
+	group: { slug: string; standing: GroupStanding },
+	origin: string,
+	audit: AuditContext
+): Promise<{ delivery: Promise<void> }> {
+	const user = await createInvitedAccount(
+		em,
+		{ email, displayName: email.split('@')[0], roles: ['reader'], groups: [group] },
+		audit
+	);
+	const delivery = inBackground(em, 'group invitation', async (background) => {
+		await sendInvitation(background, user, origin, audit);
+	});
+	return { delivery };
+}
+
+/** Work that runs after the answer is sent, on its own EntityManager; a failure is logged, not thrown. */
+function inBackground(em: EntityManager, what: string, work: (em: EntityManager) => Promise<void>): Promise<void> {
+	return work(em.fork()).catch((error: Error) => logger.error({ err: error }, `${what} could not be sent`));
+}
+
+/**
+ * Ends every session of the account except `keepSessionId` and revokes all its API tokens: after a
+ * password change or reset, whoever knew the old password keeps no way in.
+ */
+async function endOtherAccess(em: EntityManager, userId: string, keepSessionId: string | null) {
+	const sessionsEnded = await em.nativeDelete(
+		Session,
+		keepSessionId ? { user: userId, id: { $ne: keepSessionId } } : { user: userId }
+	);
+	const tokensRevoked = await em.nativeUpdate(ApiToken, { user: userId, revokedAt: null }, { revokedAt: new Date() });
+	return { sessionsEnded, tokensRevoked };
 }
 
 export async function sendInvitation(em: EntityManager, user: UserEntity, origin: string, audit: AuditContext) {
@@ -127,36 +175,43 @@ export async function acceptInvitation(em: EntityManager, secret: string, passwo
 }
 
 /**
- * Mails a reset link if an active account has this address. The caller answers the same way either
- * way; delivery is returned, not awaited, so the response time does not tell either.
+ * Mails a reset link if an active account has this address, at most `PASSWORD_RESET_LIMITS` times per
+ * address and per client. The caller answers the same way in every case; the link is made and mailed
+ * after the answer (`delivery`), so the response time does not tell either.
  */
 export async function requestPasswordReset(
 	em: EntityManager,
 	email: string,
 	origin: string,
-	audit: AuditContext
+	audit: AuditContext,
+	throttle: AttemptThrottle = passwordResetThrottle
 ): Promise<{ delivery: Promise<void> }> {
-	const user = await em.findOne(User, { email: email.toLowerCase(), passwordHash: { $ne: null }, suspendedAt: null });
-	await recordAudit(em, 'password-reset-requested', {
+	const account = email.toLowerCase();
+	const verdict = await throttle.take(em, account, audit.clientAddress ?? 'unknown');
+	const user = await em.findOne(User, { email: account, passwordHash: { $ne: null }, suspendedAt: null });
+	await recordAudit(em, verdict.allowed ? 'password-reset-requested' : 'password-reset-throttled', {
 		...audit,
-		subject: email.toLowerCase(),
+		subject: account,
 		detail: { known: !!user }
 	});
-	if (!user) return { delivery: Promise.resolve() };
-	const link = await issueLink(em, 'password-reset', user, user.email, origin);
-	const delivery = sendMail(
-		passwordResetMail(user.email, link, LINK_LIFETIME_MS['password-reset'] / MINUTE_IN_MS)
-	).catch((error: Error) => logger.error({ err: error }, 'password reset mail could not be sent'));
+	if (!user || !verdict.allowed) return { delivery: Promise.resolve() };
+	const delivery = inBackground(em, 'password reset mail', async (background) => {
+		const link = await issueLink(background, 'password-reset', user, user.email, origin);
+		await sendMail(passwordResetMail(user.email, link, LINK_LIFETIME_MS['password-reset'] / MINUTE_IN_MS));
+	});
 	return { delivery };
 }
 
-/** Sets a new password from a reset link and ends every session of the account. */
+/** Sets a new password from a reset link; every session and API token of the account stops working. */
 export async function resetPassword(em: EntityManager, secret: string, password: string, audit: AuditContext) {
 	const link = await consumeLink(em, secret, 'password-reset');
 	if (!link) return null;
-	await em.nativeUpdate(User, { id: link.user.id }, { passwordHash: await hashPassword(password) });
-	await em.nativeDelete(Session, { user: link.user.id });
-	await recordAudit(em, 'password-reset', { ...audit, actorId: link.user.id, subject: link.user.id });
+	const passwordHash = await hashPassword(password);
+	const ended = await em.transactional(async (tx) => {
+		await tx.nativeUpdate(User, { id: link.user.id }, { passwordHash });
+		return endOtherAccess(tx, link.user.id, null);
+	});
+	await recordAudit(em, 'password-reset', { ...audit, actorId: link.user.id, subject: link.user.id, detail: ended });
 	return link.user;
 }
 
@@ -171,10 +226,11 @@ export async function checkPassword(
 	email: string,
 	password: string,
 	clientAddress: string,
-	throttle: SignInThrottle = signInThrottle
+	throttle: AttemptThrottle = signInThrottle
 ): Promise<SignInResult> {
 	const account = email.toLowerCase();
-	const verdict = throttle.check(account, clientAddress);
+	// Counted before the password is checked: each guess uses up one of the limited attempts.
+	const verdict = await throttle.take(em, account, clientAddress);
 	if (!verdict.allowed) {
 		await recordAudit(em, 'sign-in-throttled', { subject: account, clientAddress });
 		return {
@@ -186,28 +242,34 @@ export async function checkPassword(
 	const user = await em.findOne(User, { email: account });
 	const matches = await verifyPassword(user?.passwordHash, password);
 	if (!user || !matches || user.suspendedAt) {
-		throttle.recordFailure(account, clientAddress);
 		await recordAudit(em, 'sign-in-failed', { subject: account, clientAddress });
 		return { ok: false, reason: 'invalid' };
 	}
-	throttle.recordSuccess(account);
+	await throttle.succeeded(em, verdict.attempt);
 	await recordAudit(em, 'sign-in', { actorId: user.id, subject: user.id, clientAddress });
 	return { ok: true, user };
 }
 
+export type PasswordChange = { changed: false } | { changed: true; sessionsEnded: number; tokensRevoked: number };
+
+/** Sets a new password; every other session ends and every API token of the account is revoked. */
 export async function changePassword(
 	em: EntityManager,
 	userId: string,
 	current: string,
 	next: string,
-	audit: AuditContext
-): Promise<boolean> {
+	audit: AuditContext,
+	currentSessionId: string | null
+): Promise<PasswordChange> {
 	const user = await em.findOneOrFail(User, { id: userId });
-	if (!(await verifyPassword(user.passwordHash, current))) return false;
-	user.passwordHash = await hashPassword(next);
-	await em.flush();
-	await recordAudit(em, 'password-set', { ...audit, subject: userId });
-	return true;
+	if (!(await verifyPassword(user.passwordHash, current))) return { changed: false };
+	const passwordHash = await hashPassword(next);
+	const ended = await em.transactional(async (tx) => {
+		await tx.nativeUpdate(User, { id: userId }, { passwordHash });
+		return endOtherAccess(tx, userId, currentSessionId);
+	});
+	await recordAudit(em, 'password-set', { ...audit, subject: userId, detail: ended });
+	return { changed: true, ...ended };
 }
 
 export async function updateProfile(em: EntityManager, userId: string, profile: ProfileInput) {
@@ -217,21 +279,30 @@ export async function updateProfile(em: EntityManager, userId: string, profile: 
 	return user;
 }
 
-/** Mails a confirmation link to the new address; the account keeps its old address until it is used. */
+/**
+ * Mails a confirmation link to the new address; the account keeps its old address until it is used.
+ * When another account has that address, its owner is told instead and nothing changes: the person
+ * asking gets the same answer in the same time either way (the mail leaves after the answer,
+ * `delivery`), so the form cannot be used to find out which addresses have accounts.
+ */
 export async function requestEmailChange(
 	em: EntityManager,
 	userId: string,
 	newEmail: string,
 	origin: string,
 	audit: AuditContext
-) {
+): Promise<{ delivery: Promise<void> }> {
 	const email = newEmail.toLowerCase();
 	const user = await em.findOneOrFail(User, { id: userId });
 	if (email === user.email) throw new AccountError('That is already your address.');
-	if (await em.count(User, { email })) throw new AccountError('That address cannot be used.');
-	const link = await issueLink(em, 'email-change', user, email, origin);
-	await sendMail(emailChangeMail(email, link, LINK_LIFETIME_MS['email-change'] / (60 * MINUTE_IN_MS)));
-	await recordAudit(em, 'email-change-requested', { ...audit, subject: userId, detail: { to: email } });
+	const taken = (await em.count(User, { email })) > 0;
+	await recordAudit(em, 'email-change-requested', { ...audit, subject: userId, detail: { to: email, taken } });
+	const delivery = inBackground(em, 'address change mail', async (background) => {
+		if (taken) return sendMail(addressInUseMail(email));
+		const link = await issueLink(background, 'email-change', user, email, origin);
+		await sendMail(emailChangeMail(email, link, LINK_LIFETIME_MS['email-change'] / (60 * MINUTE_IN_MS)));
+	});
+	return { delivery };
 }
 
 export async function confirmEmailChange(em: EntityManager, secret: string, audit: AuditContext) {
@@ -258,11 +329,18 @@ export async function setRoles(em: EntityManager, userId: string, roles: Role[],
 	return user;
 }
 
-/** For the operator command line: a password set directly, activating the account. */
+/**
+ * For the operator command line: a password set directly, activating the account. Like any password
+ * change, it ends the account's sessions and revokes its API tokens.
+ */
 export async function setPassword(em: EntityManager, userId: string, password: string, audit: AuditContext) {
-	await em.nativeUpdate(User, { id: userId }, { passwordHash: await hashPassword(password), activatedAt: new Date() });
-	await em.nativeUpdate(OneTimeLink, { user: userId, purpose: 'invitation', usedAt: null }, { usedAt: new Date() });
-	await recordAudit(em, 'password-set', { ...audit, subject: userId });
+	const passwordHash = await hashPassword(password);
+	const ended = await em.transactional(async (tx) => {
+		await tx.nativeUpdate(User, { id: userId }, { passwordHash, activatedAt: new Date() });
+		await tx.nativeUpdate(OneTimeLink, { user: userId, purpose: 'invitation', usedAt: null }, { usedAt: new Date() });
+		return endOtherAccess(tx, userId, null);
+	});
+	await recordAudit(em, 'password-set', { ...audit, subject: userId, detail: ended });
 }
 
 /** Suspends or reinstates an account; suspension ends its sessions and stops its tokens at once. */

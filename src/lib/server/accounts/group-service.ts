@@ -1,5 +1,6 @@
-import type { EntityManager } from '@mikro-orm/postgresql';
+import { UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
 import { Group, GroupMembership, User, type GroupStanding } from '../entities/index';
+import { inviteToGroup } from './account-service';
 import { recordAudit, type AuditContext } from './audit';
 
 export class GroupError extends Error {}
@@ -60,6 +61,35 @@ export async function addMember(
 		detail: { userId: user.id, email: user.email, standing }
 	});
 	return membership;
+}
+
+/**
+ * Adds the person with this address to the group or, when no account has the address, creates one in
+ * the group and mails its invitation after the answer (`delivery`). The caller answers alike either
+ * way, so a group manager cannot use the form to find out which addresses have accounts.
+ */
+export async function addOrInviteMember(
+	em: EntityManager,
+	slug: string,
+	email: string,
+	standing: GroupStanding,
+	origin: string,
+	audit: AuditContext
+): Promise<{ delivery: Promise<void> }> {
+	if (!(await em.count(Group, { slug }))) throw new GroupError(`There is no group called ${slug}.`);
+	const added = { delivery: Promise.resolve() };
+	if (await em.count(User, { email: email.toLowerCase() })) {
+		await addMember(em, slug, email, standing, audit);
+		return added;
+	}
+	try {
+		return await inviteToGroup(em.fork(), email, { slug, standing }, origin, audit);
+	} catch (cause) {
+		// Someone else's request created the account a moment ago: add it like any other.
+		if (!(cause instanceof UniqueConstraintViolationException)) throw cause;
+		await addMember(em, slug, email, standing, audit);
+		return added;
+	}
 }
 
 export async function removeMember(em: EntityManager, slug: string, userId: string, audit: AuditContext) {

@@ -1,7 +1,9 @@
 import { z } from 'zod';
 import { GROUP_STANDINGS, ROLES, TOKEN_SCOPES } from '../entities/index';
 import { EmailSchema } from '../accounts/schemas';
-import { registerApiSchema } from './schema-registry';
+import { describeOperation, registerApiSchema } from './schema-registry';
+
+const ADD_MEMBER_OPERATION = 'POST /api/v1/groups/{slug}/members';
 
 export const MeSchema = registerApiSchema(
 	z.object({
@@ -27,5 +29,23 @@ export const GroupMemberSchema = registerApiSchema(
 
 export const AddGroupMemberSchema = registerApiSchema(
 	z.object({ email: EmailSchema, standing: z.enum(GROUP_STANDINGS).default('member') }).strict(),
-	{ id: 'AddGroupMember', description: 'Adds a person with an account to a group (or changes their standing).' }
+	{
+		id: 'AddGroupMember',
+		description:
+			'Adds a person to a group by e-mail address (or changes their standing); an address without an account is invited.'
+	}
 );
+
+export const GroupMemberAddedSchema = registerApiSchema(
+	z.object({ group: z.string(), email: z.string(), standing: z.enum(GROUP_STANDINGS) }),
+	{
+		id: 'GroupMemberAdded',
+		description:
+			'The same answer whether or not the address had an account (someone without one is mailed an invitation).',
+		responseFor: [ADD_MEMBER_OPERATION]
+	}
+);
+
+describeOperation(ADD_MEMBER_OPERATION, {
+	responses: { '201': { description: 'Added, or invited into the group', schema: 'GroupMemberAdded' } }
+});

@@ -10,6 +10,7 @@ export const AUDIT_KINDS = [
 	'invitation-sent',
 	'invitation-accepted',
 	'password-reset-requested',
+	'password-reset-throttled',
 	'password-reset',
 	'password-set',
 	'email-change-requested',

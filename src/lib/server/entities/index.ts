@@ -8,6 +8,7 @@ import { Group } from './group.entity';
 import { OneTimeLink } from './one-time-link.entity';
 import { REGISTRY_ENTITIES } from './registry-entities';
 import { Session } from './session.entity';
+import { ThrottleAttempt } from './throttle-attempt.entity';
 import { User } from './user.entity';
 
 /** Every entity, listed explicitly (no globs: the CLI, scripts and Vite must see the same list). */
@@ -19,13 +20,14 @@ export const ENTITIES = [
 	ApiToken,
 	OneTimeLink,
 	AuditEvent,
+	ThrottleAttempt,
 	...REGISTRY_ENTITIES,
 	LightCurveUpload,
 	LightCurveResult,
 	CalibratorValueSource
 ];
 
-export { ApiToken, AuditEvent, Group, GroupMembership, OneTimeLink, Session, User };
+export { ApiToken, AuditEvent, Group, GroupMembership, OneTimeLink, Session, ThrottleAttempt, User };
 export { ROLES } from './user.entity';
 export { TOKEN_SCOPES } from './api-token.entity';
 export { GROUP_STANDINGS } from './group-membership.entity';

@@ -32,3 +32,15 @@ export function emailChangeMail(to: string, link: string, hours: number): Outgoi
 			`once and for ${hours} hours):\n\n${link}${SIGNATURE}`
 	};
 }
+
+/** To the owner of an address another account asked to move to: nothing changes, and they know it was tried. */
+export function addressInUseMail(to: string): OutgoingMail {
+	return {
+		to,
+		subject: 'Your Candlebook address was asked for',
+		text:
+			`Someone signed in to another Candlebook account asked to move that account to this address. ` +
+			`This address already belongs to your account, so nothing has changed. If you know who it was, ` +
+			`they can use a different address.${SIGNATURE}`
+	};
+}

@@ -1,7 +1,14 @@
 import { error, fail } from '@sveltejs/kit';
 import { z } from 'zod';
 import { toGroupDto, toMemberDto } from '$lib/server/accounts/dto';
-import { addMember, GroupError, listMembers, removeMember, standingIn } from '$lib/server/accounts/group-service';
+import {
+	addMember,
+	addOrInviteMember,
+	GroupError,
+	listMembers,
+	removeMember,
+	standingIn
+} from '$lib/server/accounts/group-service';
 import { EmailSchema } from '$lib/server/accounts/schemas';
 import { requireGroupStanding } from '$lib/server/auth/guards';
 import { auditContext } from '$lib/server/auth/request-context';
@@ -34,11 +41,19 @@ export const actions: Actions = {
 		const parsed = AddSchema.safeParse(fields);
 		if (!parsed.success) return fail(400, { values: fields, errors: formErrors(parsed.error) });
 		try {
-			await addMember(event.locals.em, event.params.slug, parsed.data.email, parsed.data.standing, auditContext(event));
+			await addOrInviteMember(
+				event.locals.em,
+				event.params.slug,
+				parsed.data.email,
+				parsed.data.standing,
+				event.url.origin,
+				auditContext(event)
+			);
 		} catch (cause) {
-			if (cause instanceof GroupError) return fail(400, { values: fields, errors: { email: [cause.message] } });
+			if (cause instanceof GroupError) error(404, cause.message);
 			throw cause;
 		}
+		// The same answer whether or not the address had an account.
 		return { added: parsed.data.email };
 	},
 
