@@ -47,7 +47,7 @@ export function showForbiddenCharacters(text: string): string {
 }
 
 export interface ForbiddenInJson {
-	/** Where it is, the way a client indexes its own value: `stars[3].name`; `(body)` for the root. */
+	/** Where it is, as the API's field errors name it: `stars/3/id`; `(body)` for the root. */
 	path: string;
 	reason: string;
 }
@@ -61,7 +61,7 @@ export function findForbiddenInJson(value: unknown, path = ''): ForbiddenInJson 
 	}
 	if (Array.isArray(value)) {
 		for (let i = 0; i < value.length; i++) {
-			const inner = findForbiddenInJson(value[i], `${path}[${i}]`);
+			const inner = findForbiddenInJson(value[i], path ? `${path}/${i}` : String(i));
 			if (inner) return inner;
 		}
 		return null;
@@ -69,7 +69,7 @@ export function findForbiddenInJson(value: unknown, path = ''): ForbiddenInJson 
 	if (value !== null && typeof value === 'object') {
 		for (const [key, member] of Object.entries(value)) {
 			const found = findForbiddenCharacter(key);
-			const memberPath = path ? `${path}.${showForbiddenCharacters(key)}` : showForbiddenCharacters(key);
+			const memberPath = path ? `${path}/${showForbiddenCharacters(key)}` : showForbiddenCharacters(key);
 			if (found) return { path: memberPath, reason: `the member name ${forbiddenCharacterReason(found)}` };
 			const inner = findForbiddenInJson(member, memberPath);
 			if (inner) return inner;
