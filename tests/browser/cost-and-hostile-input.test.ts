@@ -271,3 +271,22 @@ test.describe('NUL, lone surrogates and U+FFFE/U+FFFF in uploads answer 422 by c
 		]);
 	});
 });
+
+test('the export archive is addressed by its content: the same ETag and bytes twice, 304 when the client has it', async ({
+	request
+}) => {
+	const t0 = performance.now();
+	const first = await request.get('/api/v1/export');
+	const t1 = performance.now();
+	const second = await request.get('/api/v1/export');
+	const t2 = performance.now();
+	console.log(`GET /api/v1/export: first ${(t1 - t0).toFixed(0)} ms, again ${(t2 - t1).toFixed(0)} ms`);
+	expect(first.status()).toBe(200);
+	const etag = first.headers()['etag'];
+	expect(etag).toMatch(/^"sha256-[0-9a-f]{64}"$/);
+	expect(second.headers()['etag']).toBe(etag);
+	expect(Buffer.compare(await first.body(), await second.body())).toBe(0);
+	const unchanged = await request.get('/api/v1/export', { headers: { 'if-none-match': etag } });
+	expect(unchanged.status()).toBe(304);
+	await expectMatchesOpenApi(request, unchanged, 'GET /api/v1/export');
+});
