@@ -13,6 +13,7 @@ import { parseCalibratorRevisionContent } from '../../src/lib/calibration/frozen
 import { parseCalibratorTable } from '../../src/lib/calibration/calibrator-table/index';
 import { parseLightCurveUpload } from '../../src/lib/calibration/light-curves/upload-table';
 import { atomFeed } from '../../src/lib/publishing/atom';
+import { parseJsonBytes } from '../../src/lib/server/api/request-body';
 import { calibratorRevisionToVoTable } from '../../src/lib/publishing/votable';
 
 /**
@@ -56,6 +57,31 @@ describe('the forbidden-character rule (XML 1.0 §2.2 Char)', () => {
 		expect(findForbiddenInJson({ ['k\uFFFF']: 1 })?.path).toBe('k⟨U+FFFF⟩');
 		expect(findForbiddenInJson('\u0001')?.path).toBe('(body)');
 		expect(findForbiddenInJson({ fine: ['😀', 1, null, true] })).toBeNull();
+	});
+});
+
+describe('JSON bodies', () => {
+	const refusal = (json: string) => {
+		try {
+			parseJsonBytes(new TextEncoder().encode(json));
+		} catch (caught) {
+			return caught as { status: number; body: { errors?: { path: string }[] } };
+		}
+		return null;
+	};
+
+	test.each([
+		['an escaped NUL', '{"stars":[{"id":"a"},{"id":"b\\u0000"}]}', 'stars/1/id'],
+		['an escaped lone surrogate', '{"rationale":"x\\udc00"}', 'rationale'],
+		['a raw U+FFFE', '{"title":"x\uFFFE"}', 'title'],
+		['an escaped U+FFFF in a member name', '{"k\\uffff":1}', 'k⟨U+FFFF⟩']
+	])('refuses %s with 422 naming its path', (_name, json, path) => {
+		expect(refusal(json)).toMatchObject({ status: 422, body: { errors: [{ path }] } });
+	});
+
+	test('passes escaped text that is allowed (a surrogate pair, a tab) and answers 400 to what is not JSON', () => {
+		expect(parseJsonBytes(new TextEncoder().encode('{"a":"\\ud83d\\ude00\\t"}'))).toEqual({ a: '😀\t' });
+		expect(refusal('{"a":')).toMatchObject({ status: 400 });
 	});
 });
 
