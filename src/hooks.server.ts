@@ -8,6 +8,7 @@ import { handleCors } from '$lib/server/edge/cors-hook';
 import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
 import { handleTheme } from '$lib/server/theme';
+import { handleVisitorFormLimit } from '$lib/server/visitor-form-limit';
 
 export const init: ServerInit = async () => {
 	const config = getConfig();
@@ -67,6 +68,7 @@ export const handle = sequence(
 	handleDb,
 	handleApiProblems,
 	handleAuth,
+	handleVisitorFormLimit,
 	handleGuard,
 	handleTheme
 );

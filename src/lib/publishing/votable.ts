@@ -4,6 +4,7 @@
  * citations as INFO elements, so a VO client (astropy, TOPCAT…) reads the numbers with their meaning.
  * A revision that took values from light-curve analyses has a second TABLE naming the analysis of each.
  */
+import { stripForbiddenCharacters } from '../calibration/forbidden-characters';
 import type { CalibratorRevisionContent } from '../calibration/frozen-content';
 
 export interface VoTableProvenance {
@@ -74,19 +75,18 @@ export function fieldMeta(field: string): FieldMeta {
 	return { datatype: 'char', unit: null, ucd: 'meta.note', description: field };
 }
 
+/**
+ * Text as XML 1.0 character data or an attribute value. Characters XML 1.0 forbids even as references
+ * (C0 controls but tab, LF and CR; unpaired surrogates; U+FFFE, U+FFFF) are dropped: uploads refuse
+ * them, so only text stored before that rule can still hold one, and a document must parse regardless.
+ */
 export function escapeXml(text: string): string {
-	return (
-		text
-			.replaceAll('&', '&amp;')
-			.replaceAll('<', '&lt;')
-			.replaceAll('>', '&gt;')
-			.replaceAll('"', '&quot;')
-			.replaceAll("'", '&apos;')
-			// XML 1.0 forbids control characters other than tab, line feed and carriage return, even escaped.
-			.split('')
-			.filter((char) => char.charCodeAt(0) >= 0x20 || char === '\t' || char === '\n' || char === '\r')
-			.join('')
-	);
+	return stripForbiddenCharacters(text)
+		.replaceAll('&', '&amp;')
+		.replaceAll('<', '&lt;')
+		.replaceAll('>', '&gt;')
+		.replaceAll('"', '&quot;')
+		.replaceAll("'", '&apos;');
 }
 
 const attribute = (name: string, value: string | null) => (value === null ? '' : ` ${name}="${escapeXml(value)}"`);

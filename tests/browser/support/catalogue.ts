@@ -46,7 +46,13 @@ export interface SeededRelation {
 /** A public relation with `versions` approved versions, each fitted with 3σ clipping. */
 export async function seedFittedRelation(
 	orm: MikroORM,
-	options: { versions?: number; outliers?: number; label?: string } = {}
+	options: {
+		versions?: number;
+		outliers?: number;
+		label?: string;
+		/** Fitted with a seeded bootstrap; 200 resamples or more queue the fit, which is awaited here. */
+		bootstrap?: { resamples: number; seed: number };
+	} = {}
 ): Promise<SeededRelation> {
 	const group = await createGroupRow(orm, uniqueSlug('screens'));
 	const curator = await createPerson(orm, {
@@ -103,9 +109,15 @@ export async function seedFittedRelation(
 			population: 'classical_fundamental',
 			anchor: 'host',
 			method: n % 2 === 1 ? 'ml_scatter' : 'wls',
-			clipping: { sigma: 3, max_iterations: 5 }
+			clipping: { sigma: 3, max_iterations: 5 },
+			...(options.bootstrap ? { bootstrap: options.bootstrap } : {})
 		});
-		expect(fit.body.state).toBe('succeeded');
+		let job = fit.body;
+		for (let i = 0; i < 120 && (job.state === 'queued' || job.state === 'running'); i++) {
+			await new Promise((resolve) => setTimeout(resolve, 500));
+			job = (await call(curatorToken, 'GET', `/api/v1/jobs/${fit.body.id}`)).body;
+		}
+		expect(job.state).toBe('succeeded');
 		const proposed = await call(curatorToken, 'POST', `/api/v1/relations/${slug}/proposals`, {
 			fit: fit.body.id,
 			title: `Version ${n}`,

@@ -1,5 +1,6 @@
 import Papa from 'papaparse';
 import { fieldDefinition, isPopulation, REQUIRED_FIELDS, type FieldDefinition } from './fields';
+import { findForbiddenCells, showForbiddenCharacters } from '../forbidden-characters';
 
 /**
  * Reads an uploaded calibrator table (CSV or TSV) into canonical rows. Nothing is half-accepted: the
@@ -90,6 +91,8 @@ export function parseCalibratorTable(
 		report({ line: null, column: null, value: null, reason: 'the file has no header row' });
 		return empty;
 	}
+	for (const issue of forbiddenCellIssues(parsed.data, (rowIndex) => rowIndex + 1)) report(issue);
+	if (issues.length > 0) return empty;
 	if (header.length > limits.maxColumns) {
 		report({ line: 1, column: null, value: null, reason: `more than ${limits.maxColumns} columns` });
 		return empty;
@@ -256,4 +259,19 @@ function readCell(
 	if (!Number.isFinite(value)) return { reason: 'is out of range' };
 	const problem = definition.check?.(value);
 	return problem ? { reason: problem } : value;
+}
+
+/** A cell holding a character text cannot carry (NUL, a lone surrogate, …), by line and column. */
+export function forbiddenCellIssues(rows: string[][], lineOf: (rowIndex: number) => number): TableIssue[] {
+	const header = rows[0] ?? [];
+	return findForbiddenCells(rows, lineOf).map(({ line, columnIndex, cell, reason }) => {
+		const name = header[columnIndex]?.trim();
+		const shown = showForbiddenCharacters(cell);
+		return {
+			line,
+			column: name ? showForbiddenCharacters(name) : `column ${columnIndex + 1}`,
+			value: shown.length > 60 ? `${shown.slice(0, 60)}…` : shown,
+			reason
+		};
+	});
 }

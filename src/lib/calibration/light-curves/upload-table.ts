@@ -6,7 +6,7 @@
  */
 import Papa from 'papaparse';
 import { isSingleBandId, SINGLE_BAND_IDS } from '../bands';
-import { looksLikeFormula, type TableIssue } from '../calibrator-table/index';
+import { forbiddenCellIssues, looksLikeFormula, type TableIssue } from '../calibrator-table/index';
 import { MIN_POINTS, type LightCurvePoint, type LightCurveSeries } from './series';
 import { isTimeReference, TIME_REFERENCES, type TimeReference } from './time';
 
@@ -167,6 +167,8 @@ export function parseLightCurveUpload(
 		report({ line: null, column: null, value: null, reason: 'the file has no header row' });
 		return result(delimiter);
 	}
+	for (const issue of forbiddenCellIssues(parsed.data, (rowIndex) => rowIndex + 1)) report(issue);
+	if (issues.length > 0) return result(delimiter);
 	const expected = options.mediaType === 'text/csv' ? ',' : '\t';
 	if (header.length > 1 && delimiter !== expected) {
 		const named = delimiter === '\t' ? 'tabs' : `"${delimiter}"`;

@@ -215,6 +215,9 @@ describeOperation(REVISION_OPERATION, {
 
 describeOperation(ARCHIVE_OPERATION, {
 	description:
-		'A zip of every public, unembargoed frozen relation version (the exact pinned bytes) and every revision of every public calibrator set (JSON, CSV, VOTable), with manifest.json (path, kind, ref, SHA-256 of each file) and README.txt (how to verify). Streamed.',
-	responses: { '200': { description: 'The archive', mediaTypes: ['application/zip'] } }
+		'A zip of every public, unembargoed frozen relation version (the exact pinned bytes) and every revision of every public calibrator set (JSON, CSV, VOTable), with manifest.json (path, kind, ref, SHA-256 of each file) and README.txt (how to verify). Built once per distinct content; the ETag is its content address.',
+	responses: {
+		'200': { description: 'The archive', mediaTypes: ['application/zip'] },
+		'304': { description: 'The archive named in If-None-Match is still the current one', mediaTypes: [] }
+	}
 });

@@ -403,6 +403,12 @@ describeOperation('GET /api/v1/stars', {
 
 describeOperation('POST /api/v1/relations/{slug}/versions/{n}/reproduce', {
 	responses: {
+		'401': {
+			description:
+				'Not signed in, and the version’s bootstrap (200 resamples or more) or calibrator list (5000 or more) is beyond what an anonymous caller may have recomputed',
+			schema: 'Problem',
+			mediaTypes: ['application/problem+json']
+		},
 		'404': NOT_VISIBLE,
 		'409': {
 			description: 'The frozen calibrator revision is missing',

@@ -1,4 +1,5 @@
 import type { z } from 'zod';
+import { findForbiddenInJson } from '../../calibration/forbidden-characters';
 import { fail, fieldErrors } from './errors';
 
 /**
@@ -35,6 +36,30 @@ function tooLarge(maxBytes: number): never {
 	fail(413, `The request body is larger than this endpoint accepts (${maxBytes} bytes).`);
 }
 
+const MAY_HOLD_FORBIDDEN = /\\u|[\uFFFE\uFFFF]/;
+
+/**
+ * Parses a JSON body: 400 when it is not JSON, 422 naming the JSON path of a string that holds a
+ * character no text here may hold (NUL, an unpaired surrogate, U+FFFE/U+FFFF, other C0 controls).
+ */
+export function parseJsonBytes(bytes: Uint8Array): unknown {
+	const text = new TextDecoder().decode(bytes);
+	let value: unknown;
+	try {
+		value = JSON.parse(text);
+	} catch (cause) {
+		fail(400, `The body is not valid JSON: ${(cause as Error).message}`);
+	}
+	// Valid JSON carries a control character or a lone surrogate only as a \u escape, so a body with
+	// neither an escape nor a raw U+FFFE/U+FFFF (most bodies, and large ones) needs no walk.
+	const forbidden = MAY_HOLD_FORBIDDEN.test(text) ? findForbiddenInJson(value) : null;
+	if (forbidden)
+		fail(422, `The body has a character Candlebook does not store at ${forbidden.path}.`, [
+			{ path: forbidden.path, message: forbidden.reason }
+		]);
+	return value;
+}
+
 /** Reads, size-limits and validates a JSON body against a zod schema (422 with field errors). */
 export async function readJsonBody<T extends z.ZodType>(
 	request: Request,
@@ -43,13 +68,7 @@ export async function readJsonBody<T extends z.ZodType>(
 ): Promise<z.infer<T>> {
 	const type = request.headers.get('content-type') ?? '';
 	if (!/^application\/([a-z.+-]*\+)?json\b/i.test(type)) fail(415, 'Send the body as application/json.');
-	const bytes = await readBodyWithLimit(request, maxBytes);
-	let value: unknown;
-	try {
-		value = JSON.parse(new TextDecoder().decode(bytes));
-	} catch (cause) {
-		fail(400, `The body is not valid JSON: ${(cause as Error).message}`);
-	}
+	const value = parseJsonBytes(await readBodyWithLimit(request, maxBytes));
 	const parsed = schema.safeParse(value);
 	if (!parsed.success) fail(422, 'The request body does not match the schema.', fieldErrors(parsed.error));
 	return parsed.data;

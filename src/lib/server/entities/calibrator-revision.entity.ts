@@ -11,6 +11,14 @@ export const CalibratorRevision = defineEntity({
 	name: 'CalibratorRevision',
 	tableName: 'app_calibrator_revision',
 	uniques: [{ properties: ['calibratorSet', 'number'] }],
+	// The star search's GIN index over lower-cased star names and cross ids (Migration20261206000500).
+	indexes: [
+		{
+			name: 'app_calibrator_revision_star_keys_index',
+			expression:
+				'create index "app_calibrator_revision_star_keys_index" on "app_calibrator_revision" using gin (app_calibrator_star_keys("content"))'
+		}
+	],
 	properties: (p) => ({
 		id: p
 			.uuid()

@@ -10,6 +10,14 @@ export const RelationVersion = defineEntity({
 	name: 'RelationVersion',
 	tableName: 'app_relation_version',
 	uniques: [{ properties: ['relation', 'number'] }],
+	// Versions fitted from a calibrator revision, found by what their frozen content names (Migration20261206000500).
+	indexes: [
+		{
+			name: 'app_relation_version_calibrator_revision_index',
+			expression:
+				'create index "app_relation_version_calibrator_revision_index" on "app_relation_version" (("content"->\'calibrator_set\'->>\'slug\'), (cast("content"->\'calibrator_set\'->>\'revision\' as int)))'
+		}
+	],
 	properties: (p) => ({
 		id: p
 			.uuid()

@@ -1,7 +1,7 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import type { z } from 'zod';
 import { AnalyseRequestSchema, type AnalyseRequest } from '../api/light-curve-schemas';
-import { readBodyWithLimit } from '../api/request-body';
+import { parseJsonBytes, readBodyWithLimit } from '../api/request-body';
 import { getConfig } from '../config';
 import { RegistryError } from '../registry/errors';
 import { BatchRefusedError } from './analysis';
@@ -23,13 +23,7 @@ export async function readAnalyseRequest(event: RequestEvent): Promise<AnalyseRe
 	if (!/^application\/([a-z.+-]*\+)?json\b/i.test(type)) {
 		throw new RegistryError(415, 'unsupported-media-type', 'Send the light curves as application/json.');
 	}
-	const bytes = await readBodyWithLimit(event.request, getConfig().CANDLEBOOK_MAX_JSON_BYTES);
-	let value: unknown;
-	try {
-		value = JSON.parse(new TextDecoder().decode(bytes));
-	} catch (cause) {
-		throw new RegistryError(400, 'bad-json', `The body is not valid JSON: ${(cause as Error).message}`);
-	}
+	const value = parseJsonBytes(await readBodyWithLimit(event.request, getConfig().CANDLEBOOK_MAX_JSON_BYTES));
 	const parsed = AnalyseRequestSchema.safeParse(value);
 	if (!parsed.success) {
 		const errors = fieldErrorsOf(parsed.error);

@@ -23,6 +23,8 @@ import { isEmbargoed } from './versions';
  */
 const BATCH = 50;
 const encoder = new TextEncoder();
+/** Changes whenever the archive's files or their layout change for the same listing, so old cache keys retire. */
+const ARCHIVE_LAYOUT = 1;
 
 export interface ManifestEntry {
 	path: string;
@@ -47,16 +49,100 @@ interface ArchiveFile {
 /** fflate writes DOS times from local clock fields: shift so the archive is the same in every time zone. */
 const dosTime = (date: Date) => new Date(date.getTime() + date.getTimezoneOffset() * 60_000);
 
-async function* relationVersionFiles(em: EntityManager, now: Date, entries: ManifestEntry[]) {
+/**
+ * Everything the archive for this caller holds, and nothing more: what its cache key is made of and
+ * what the build reads. Two callers share a built archive only when their listings are equal, so a
+ * group's content can never reach a caller who may not see it, and any new or changed item (a version,
+ * a revision, a set's title, licence or citations, an embargo ending) gives a new key.
+ */
+export interface ArchiveListing {
+	/** Whose view this is: the archive holds public content only, the same for every caller. */
+	scope: 'public';
+	versions: { id: string; slug: string; number: number; digest: string; createdAt: string }[];
+	revisions: {
+		id: string;
+		set: string;
+		number: number;
+		digest: string;
+		createdAt: string;
+		title: string;
+		licence: string;
+		citations: string[];
+	}[];
+}
+
+export async function archiveListing(em: EntityManager, now = new Date()): Promise<ArchiveListing> {
 	const lifecycles = await em.find(
 		VersionLifecycle,
 		{ relation: { visibility: 'public' } },
 		{ populate: ['relation'], orderBy: { relation: { slug: 'asc' }, number: 'asc' } }
 	);
 	const open = lifecycles.filter((lifecycle) => !isEmbargoed(lifecycle, now));
-	const slugs = new Map(open.map((lifecycle) => [lifecycle.id, lifecycle.relation.slug]));
-	for (let start = 0; start < open.length; start += BATCH) {
-		const ids = open.slice(start, start + BATCH).map((lifecycle) => lifecycle.id);
+	const frozen = open.length
+		? await em.find(
+				RelationVersion,
+				{ id: { $in: open.map((lifecycle) => lifecycle.id) } },
+				{ fields: ['id', 'number', 'digest', 'createdAt'] }
+			)
+		: [];
+	const byId = new Map(frozen.map((version) => [version.id, version]));
+	const revisions = await em.find(
+		CalibratorRevision,
+		{ calibratorSet: { visibility: 'public' } },
+		{
+			fields: [
+				'id',
+				'number',
+				'digest',
+				'createdAt',
+				'calibratorSet.slug',
+				'calibratorSet.title',
+				'calibratorSet.licence',
+				'calibratorSet.citations'
+			],
+			orderBy: { calibratorSet: { slug: 'asc' }, number: 'asc' }
+		}
+	);
+	const listing: ArchiveListing = {
+		scope: 'public',
+		versions: open.flatMap((lifecycle) => {
+			const version = byId.get(lifecycle.id);
+			return version
+				? [
+						{
+							id: version.id,
+							slug: lifecycle.relation.slug,
+							number: version.number,
+							digest: version.digest,
+							createdAt: version.createdAt.toISOString()
+						}
+					]
+				: [];
+		}),
+		revisions: revisions.map((revision) => ({
+			id: revision.id,
+			set: revision.calibratorSet.slug,
+			number: revision.number,
+			digest: revision.digest,
+			createdAt: revision.createdAt.toISOString(),
+			title: revision.calibratorSet.title,
+			licence: revision.calibratorSet.licence,
+			citations: revision.calibratorSet.citations
+		}))
+	};
+	em.clear();
+	return listing;
+}
+
+/** The archive's content address: SHA-256 of the canonical listing (and the archive's layout version). */
+export function archiveKey(listing: ArchiveListing): string {
+	return encodeHexLowerCase(sha256(encoder.encode(canonicalJson({ layout: ARCHIVE_LAYOUT, listing }))));
+}
+
+async function* relationVersionFiles(em: EntityManager, listing: ArchiveListing, entries: ManifestEntry[]) {
+	const slugs = new Map(listing.versions.map((version) => [version.id, version.slug]));
+	for (let start = 0; start < listing.versions.length; start += BATCH) {
+		const ids = listing.versions.slice(start, start + BATCH).map((version) => version.id);
 		const versions = await em.find(RelationVersion, { id: { $in: ids } });
 		const byId = new Map(versions.map((version) => [version.id, version]));
 		for (const id of ids) {
@@ -81,16 +167,9 @@ async function* relationVersionFiles(em: EntityManager, now: Date, entries: Mani
 	}
 }
 
-async function* calibratorRevisionFiles(em: EntityManager, entries: ManifestEntry[]) {
-	const listed = await em.find(
-		CalibratorRevision,
-		{ calibratorSet: { visibility: 'public' } },
-		{
-			fields: ['id', 'number', 'calibratorSet.slug'],
-			orderBy: { calibratorSet: { slug: 'asc' }, number: 'asc' }
-		}
-	);
-	const ids = listed.map((revision) => revision.id);
+async function* calibratorRevisionFiles(em: EntityManager, listing: ArchiveListing, entries: ManifestEntry[]) {
+	const listed = new Map(listing.revisions.map((revision) => [revision.id, revision]));
+	const ids = [...listed.keys()];
 	for (let start = 0; start < ids.length; start += BATCH) {
 		const batch = ids.slice(start, start + BATCH);
 		const revisions = await em.find(CalibratorRevision, { id: { $in: batch } }, { populate: ['calibratorSet'] });
@@ -100,7 +179,8 @@ async function* calibratorRevisionFiles(em: EntityManager, entries: ManifestEntr
 			if (!revision) continue;
 			const set = revision.calibratorSet;
 			const content = revisionContent(revision);
-			const publication = { content, title: set.title, licence: set.licence, citations: set.citations };
+			const { title, licence, citations } = listed.get(id)!;
+			const publication = { content, title, licence, citations };
 			for (const format of REVISION_FORMATS) {
 				const bytes = encoder.encode(renderRevision(format, publication));
 				const path = `calibrator-sets/${set.slug}/revisions/${revision.number}.${REVISION_FILE_EXTENSIONS[format]}`;
@@ -149,8 +229,12 @@ Use of the calibrator data is subject to each set's licence (SPDX id in the JSON
 VOTable INFO "licence"); cite the works listed under "citations".
 `;
 
-/** The archive as a stream of zip bytes; pull-driven, so a slow client slows the database reads too. */
-export function archiveStream(em: EntityManager, now = new Date()): ReadableStream<Uint8Array> {
+/**
+ * The archive of exactly `listing` as a stream of zip bytes; pull-driven, so a slow reader slows the
+ * database reads too. A title, licence or citation changed after the listing was read would not match
+ * the key, so the set's own fields are taken from the listing, not re-read.
+ */
+export function archiveStream(em: EntityManager, listing: ArchiveListing): ReadableStream<Uint8Array> {
 	const entries: ManifestEntry[] = [];
 	let newest = new Date(Date.UTC(2026, 0, 1));
 	let controllerRef: ReadableStreamDefaultController<Uint8Array> | null = null;
@@ -170,8 +254,8 @@ export function archiveStream(em: EntityManager, now = new Date()): ReadableStre
 		entry.push(file.bytes, true);
 	};
 	const files = (async function* () {
-		yield* relationVersionFiles(em, now, entries);
-		yield* calibratorRevisionFiles(em, entries);
+		yield* relationVersionFiles(em, listing, entries);
+		yield* calibratorRevisionFiles(em, listing, entries);
 	})();
 	let finished = false;
 	return new ReadableStream<Uint8Array>({

@@ -4,7 +4,7 @@ import type { FieldError } from '../api/problem';
  * A refusal from a registry service, with the HTTP status the API answers and a stable code. Services
  * know nothing of SvelteKit; routes turn this into problem+json.
  */
-export type RegistryStatus = 400 | 403 | 404 | 409 | 413 | 415 | 422 | 503;
+export type RegistryStatus = 400 | 401 | 403 | 404 | 409 | 413 | 415 | 422 | 503;
 
 export class RegistryError extends Error {
 	constructor(

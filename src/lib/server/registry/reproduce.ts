@@ -15,7 +15,7 @@ import { Proposal } from '../entities/proposal.entity';
 import type { Actor } from './actor';
 import { revisionRows } from './calibrator-sets';
 import { RegistryError } from './errors';
-import type { FitInput } from './fits';
+import { DEFAULT_BACKGROUND_THRESHOLDS, type BackgroundThresholds, type FitInput } from './fits';
 import { findVersion } from './versions';
 
 /**
@@ -146,12 +146,32 @@ export function reproductionToWire(reproduction: Reproduction) {
 	};
 }
 
-/** The version's reproduction, or 404 when the caller may not see it. */
+/**
+ * How much recomputation a caller who is not signed in may ask of the request: what a fit would run in
+ * the request rather than queue (fewer than 200 bootstrap resamples and fewer than 5000 calibrators).
+ * A larger reproduction needs a session or an API token, so its cost lands on an account that the
+ * per-account limits see.
+ */
+export const ANONYMOUS_REPRODUCTION_BOUND: BackgroundThresholds = DEFAULT_BACKGROUND_THRESHOLDS;
+
+export function withinAnonymousBound(
+	stored: Pick<RelationVersionContent, 'fit'>,
+	rowCount: number,
+	bound: BackgroundThresholds = ANONYMOUS_REPRODUCTION_BOUND
+): boolean {
+	return (stored.fit.bootstrap?.resamples ?? 0) < bound.bootstrapResamples && rowCount < bound.stars;
+}
+
+/**
+ * The version's reproduction, or 404 when the caller may not see it. A caller who is not signed in is
+ * refused (401) a reproduction beyond ANONYMOUS_REPRODUCTION_BOUND before the engine runs.
+ */
 export async function reproduceVersion(
 	em: EntityManager,
 	actor: Actor | null,
 	slug: string,
-	number: number
+	number: number,
+	caller: { signedIn: boolean } = { signedIn: false }
 ): Promise<Reproduction> {
 	const { version } = await findVersion(em, actor, slug, number);
 	const stored = version.content as unknown as Stored;
@@ -165,8 +185,16 @@ export async function reproduceVersion(
 			'calibrators-missing',
 			`${stored.calibrator_set.slug} has no revision ${stored.calibrator_set.revision}.`
 		);
+	const rows = revisionRows(revision);
+	if (!caller.signedIn && !withinAnonymousBound(stored, rows.length))
+		throw new RegistryError(
+			401,
+			'sign-in-to-reproduce',
+			`Reproducing ${stored.ref} reruns ${stored.fit.bootstrap?.resamples ?? 0} bootstrap resamples over ${rows.length} calibrators; ` +
+				`without signing in (or an API token) a reproduction is limited to fewer than ${ANONYMOUS_REPRODUCTION_BOUND.bootstrapResamples} resamples and ${ANONYMOUS_REPRODUCTION_BOUND.stars} calibrators.`
+		);
 	try {
-		return reproduceContent(stored, revisionRows(revision), await fittedOffsetPrior(em, version.proposalId, stored));
+		return reproduceContent(stored, rows, await fittedOffsetPrior(em, version.proposalId, stored));
 	} catch (error) {
 		if (!(error instanceof CalibrationInputError)) throw error;
 		throw new RegistryError(

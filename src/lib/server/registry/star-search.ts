@@ -7,7 +7,8 @@ import { viewerOf } from './version-standing';
 
 /**
  * Where a star appears: the calibrator revisions whose rows name it (by `star` or `cross_id`, ignoring
- * case), and for each the relation versions fitted from that revision, saying whether the fit used the
+ * case; found through the GIN index on app_calibrator_star_keys, so a search reads only the revisions
+ * that hold the name, and a page holds at most `limit` ≤ 200 appearances), and for each the relation versions fitted from that revision, saying whether the fit used the
  * star, clipped it (the frozen `rejected` list) or left it out before fitting (population, period range).
  */
 export type StarUsage = 'used' | 'rejected' | 'excluded' | 'not_used';
@@ -80,7 +81,7 @@ export async function findStar(
 	query: { q: string; limit: number; after: [string, number] | null }
 ): Promise<StarPage> {
 	const connection = em.getConnection();
-	const params: unknown[] = [...viewerParams(viewerOf(actor)), query.q, query.q];
+	const params: unknown[] = [...viewerParams(viewerOf(actor)), query.q, query.q, query.q];
 	let keyset = '';
 	if (query.after) {
 		keyset = 'and (s.slug, cr.number) > (?, ?)';
@@ -94,7 +95,8 @@ export async function findStar(
 		join app_calibrator_set s on s.id = cr.calibrator_set_id
 		cross join lateral jsonb_array_elements(cr.content->'rows') as item
 		${viewerLateral('s.group_id')}
-		where (s.visibility = 'public' or viewer.member)
+		where app_calibrator_star_keys(cr.content) @> array[lower(cast(? as text))]
+			and (s.visibility = 'public' or viewer.member)
 			and (lower(item->>'star') = lower(?) or lower(item->'values'->>'cross_id') = lower(?)) ${keyset}
 		order by s.slug, cr.number, item->>'star'
 		limit ?`,

@@ -1,4 +1,6 @@
 import { looksLikeFormula, type CanonicalRow, type MappedColumn, type TableIssue } from '../../calibration/index';
+import { findForbiddenCharacter, forbiddenCharacterReason } from '../../calibration/forbidden-characters';
+import { RegistryError } from './errors';
 
 /**
  * Checks an upload must pass before the table parser sees it, and one it must pass after: the bytes
@@ -6,6 +8,21 @@ import { looksLikeFormula, type CanonicalRow, type MappedColumn, type TableIssue
  */
 
 export type DecodedUpload = { ok: true; text: string } | { ok: false; issue: TableIssue };
+
+/** Query parameters an upload stores as text (file name, note, star…): 422 naming each that holds a forbidden character. */
+export function refuseForbiddenParameters(query: URLSearchParams, names: readonly string[]): void {
+	const errors = names.flatMap((name) => {
+		const found = findForbiddenCharacter(query.get(name) ?? '');
+		return found ? [{ path: name, message: forbiddenCharacterReason(found) }] : [];
+	});
+	if (errors.length > 0)
+		throw new RegistryError(
+			422,
+			'validation-failed',
+			'A query parameter has a character Candlebook does not store.',
+			errors
+		);
+}
 
 /** Decodes strict UTF-8, naming the line of the first byte sequence that is not UTF-8. */
 export function decodeUtf8(bytes: Uint8Array): DecodedUpload {

@@ -22,7 +22,8 @@ export const reproduceAction = (event: RequestEvent) =>
 			event.locals.em,
 			readerOf(event.locals),
 			event.params.slug ?? '',
-			version
+			version,
+			{ signedIn: event.locals.user !== null }
 		);
 		return { action: 'reproduce', version, result: reproductionToWire(reproduction) };
 	});

@@ -6,7 +6,7 @@ import {
 	toDistanceResponse
 } from '$lib/server/api/distances';
 import { fail } from '$lib/server/api/errors';
-import { readBodyWithLimit } from '$lib/server/api/request-body';
+import { parseJsonBytes, readBodyWithLimit } from '$lib/server/api/request-body';
 import { readerOf, registryResponse } from '$lib/server/registry/http';
 import type { RequestHandler } from './$types';
 
@@ -14,13 +14,7 @@ import type { RequestHandler } from './$types';
 export const POST: RequestHandler = async ({ locals, request }) => {
 	const type = request.headers.get('content-type') ?? '';
 	if (!/^application\/([a-z.+-]*\+)?json\b/i.test(type)) fail(415, 'Send the body as application/json.');
-	const bytes = await readBodyWithLimit(request, DISTANCE_BODY_LIMIT_BYTES);
-	let body: unknown;
-	try {
-		body = JSON.parse(new TextDecoder().decode(bytes));
-	} catch (cause) {
-		fail(400, `The body is not valid JSON: ${(cause as Error).message}`);
-	}
+	const body = parseJsonBytes(await readBodyWithLimit(request, DISTANCE_BODY_LIMIT_BYTES));
 	return registryResponse(async () => {
 		const computation = await computeDistances(locals.em, readerOf(locals), readDistanceEnvelope(body));
 		// Plain objects through JSON.stringify: in Node 20 that beats writing the text star by star.

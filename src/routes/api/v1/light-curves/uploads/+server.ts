@@ -14,6 +14,7 @@ import {
 import { uploadToWire } from '$lib/server/light-curves/wire';
 import { RegistryError } from '$lib/server/registry/errors';
 import { actorOf, registryResponse } from '$lib/server/registry/http';
+import { refuseForbiddenParameters } from '$lib/server/registry/upload-checks';
 import { getObjectStorage } from '$lib/server/storage/app-storage';
 import type { RequestHandler } from './$types';
 
@@ -27,6 +28,7 @@ export const POST: RequestHandler = (event) =>
 	registryResponse(async () => {
 		const actor = actorOf(event.locals);
 		const query = event.url.searchParams;
+		refuseForbiddenParameters(query, ['name', 'star', 'band', 'mapping']);
 		const parsed = UploadQuerySchema.safeParse({
 			time_reference: query.get('time_reference'),
 			time_offset_days: query.get('time_offset_days'),

@@ -7,6 +7,7 @@ import { RegistryError } from '$lib/server/registry/errors';
 import { actorOf, registryResponse, UUID } from '$lib/server/registry/http';
 import type { LightCurveValuesRequest } from '$lib/server/registry/light-curve-values';
 import { ColumnMappingSchema } from '$lib/server/registry/schemas';
+import { refuseForbiddenParameters } from '$lib/server/registry/upload-checks';
 import { revisionToWire } from '$lib/server/registry/wire';
 import { getObjectStorage } from '$lib/server/storage/app-storage';
 import type { RequestHandler } from './$types';
@@ -28,6 +29,7 @@ export const POST: RequestHandler = (event) =>
 				'Send the table as text/csv or text/tab-separated-values.'
 			);
 		}
+		refuseForbiddenParameters(event.url.searchParams, ['name', 'note', 'mapping']);
 		const mapping = parseMapping(event.url.searchParams.get('mapping'));
 		const lightCurves = parseLightCurves(event.url.searchParams);
 		const config = getConfig();
