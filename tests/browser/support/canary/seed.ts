@@ -142,14 +142,14 @@ function lightCurveCsv(star: string): string {
 }
 
 async function waitForUpload(owner: Person, id: string) {
-	for (let attempt = 0; attempt < 150; attempt++) {
+	for (let attempt = 0; attempt < 300; attempt++) {
 		const read = await api(owner.token, 'GET', `/api/v1/light-curves/uploads/${id}`);
 		const state = read.body?.job?.state;
 		if (state === 'succeeded') return;
 		if (state === 'failed') throw new Error(`light-curve analysis failed: ${JSON.stringify(read.body.job)}`);
 		await new Promise((resolve) => setTimeout(resolve, 200));
 	}
-	throw new Error(`light-curve upload ${id} was not analysed within 30 s`);
+	throw new Error(`light-curve upload ${id} was not analysed within 60 s`);
 }
 
 export interface CanaryWorld {
