@@ -3,7 +3,7 @@ import { expect } from '@playwright/test';
 import { syntheticCalibrators } from '../../../../src/lib/calibration/index';
 import type { GroupStanding, Role, TokenScope } from '../../../../src/lib/server/entities/index';
 import { createBearerToken, createGroupRow, createPerson, createSessionCookie } from '../accounts';
-import { api } from '../review-setup';
+import { api, HOST_FIT } from '../review-setup';
 import { numberCanary, textCanary, type Canary, type CallerName } from './canaries';
 import type { CrawlWorld } from './routes';
 
@@ -71,14 +71,6 @@ function calibratorCsv(options: {
 	].join('\n');
 }
 
-const FIT = {
-	band: 'W_VI',
-	population: 'classical_fundamental',
-	anchor: 'host',
-	method: 'ml_scatter',
-	clipping: { sigma: 3, max_iterations: 5 }
-};
-
 async function createSet(
 	owner: Person,
 	slug: string,
@@ -102,7 +94,7 @@ async function uploadRevision(owner: Person, slug: string, csv: string, note = '
 }
 
 async function fit(owner: Person, set: string, revision: number) {
-	const done = await api(owner.token, 'POST', '/api/v1/fits', { calibrator_set: set, revision, ...FIT });
+	const done = await api(owner.token, 'POST', '/api/v1/fits', { calibrator_set: set, revision, ...HOST_FIT });
 	expect(done.status, JSON.stringify(done.body)).toBe(200);
 	const coefficients = done.body.result.coefficients as { zero_point: number; slope: number };
 	return { job: done.body.id as string, zeroPoint: coefficients.zero_point, slope: coefficients.slope };
@@ -220,32 +212,21 @@ export async function seedCanaryWorld(orm: MikroORM): Promise<CanaryWorld> {
 	);
 	const embargoSet = 'canary-embargo-set';
 	await createSet(author, embargoSet, { title: 'Invented Cepheids behind an embargoed version' });
-	const embargoSetDigests = [
-		await uploadRevision(
-			author,
-			embargoSet,
-			calibratorCsv({
-				zeroPoint: -14.83,
-				slope: -12.47,
-				seed: 32,
-				logPeriodRange: [1.1, 1.7],
-				names: (i) => `Lantern E-${i + 1}`,
-				crossIdBase: 7200
-			})
-		),
-		await uploadRevision(
-			author,
-			embargoSet,
-			calibratorCsv({
-				zeroPoint: -15.52,
-				slope: -11.36,
-				seed: 33,
-				logPeriodRange: [1.1, 1.7],
-				names: (i) => `Lantern E-${i + 1}`,
-				crossIdBase: 7200
-			})
-		)
-	];
+	const embargoSetDigests: string[] = [];
+	for (const [zeroPoint, slope, seed] of [
+		[-14.83, -12.47, 32],
+		[-15.52, -11.36, 33]
+	]) {
+		const csv = calibratorCsv({
+			zeroPoint,
+			slope,
+			seed,
+			logPeriodRange: [1.1, 1.7],
+			names: (i) => `Lantern E-${i + 1}`,
+			crossIdBase: 7200
+		});
+		embargoSetDigests.push(await uploadRevision(author, embargoSet, csv));
+	}
 
 	// The group-private set: its texts and star names are canaries.
 	const privateSet = 'canary-private-set';
