@@ -109,7 +109,8 @@ export function hostCsv(variant: 1 | 2 = 1): string {
 	].join('\n');
 }
 
-const FIT = {
+/** The fit the review tests propose: W_VI of host Cepheids, maximum-likelihood scatter, 3σ clipping. */
+export const HOST_FIT = {
 	band: 'W_VI',
 	population: 'classical_fundamental',
 	anchor: 'host',
@@ -174,7 +175,7 @@ export async function proposal(
 	const fit = await api(author.token, 'POST', '/api/v1/fits', {
 		calibrator_set: options.set,
 		revision: options.revision,
-		...FIT
+		...HOST_FIT
 	});
 	expect(fit.status).toBe(200);
 	const proposed = await api(author.token, 'POST', `/api/v1/relations/${options.relation}/proposals`, {
