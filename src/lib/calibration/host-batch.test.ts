@@ -60,8 +60,15 @@ describe('the host batch reproduces applyRelation + combineHostDistance', () => 
 	test('per-star M, μ0, distances and warnings, and the clipped combination, to 1e-12 (the engine’s object path)', () => {
 		const stars = inventedHost(300);
 		const reference = applyRelation(vBand, stars).stars;
-		const host = combineHostDistance(vBand, reference);
+		// Stars without [Fe/H] take the pivot; the error of that assumption is the relation's [Fe/H] range
+		// (−0.6 to 0.4) read as uniform, σ = 1/√12 dex, a shared term in both paths.
+		const pivotAssumption = { error: 1 / Math.sqrt(12), conversionError: 0, assumed: 'pivot' as const };
+		const host = combineHostDistance(vBand, reference, { budget: { metallicity: pivotAssumption } });
 		const batch = hostDistanceBatch(vBand, columnsOf(stars));
+		expect(batch.combined.errorBudget.map((term) => term.id)).toEqual(['relation_coefficients', 'host_metallicity']);
+		expect(batch.combined.assumedMetallicityCount).toBe(host.assumedMetallicityCount);
+		expect(batch.combined.assumedMetallicityCount).toBeGreaterThan(20);
+		expect(batch.warnings.map((w) => w.code)).toContain('metallicity_assumed');
 		reference.forEach((star, i) => {
 			expect(Math.abs(batch.absMag[i] - star.absoluteMagnitude.value)).toBeLessThan(1e-12);
 			expect(Math.abs(batch.absMagErr[i] - star.absoluteMagnitude.error)).toBeLessThan(1e-12);

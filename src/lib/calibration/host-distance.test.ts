@@ -50,8 +50,8 @@ function hostOf(n: number, seed: number, options = {}) {
 
 describe('host-galaxy distance', () => {
 	test('statistical error shrinks as 1/√N; the systematic does not (inverse-variance mean; PRODUCT.md)', () => {
-		const small = hostOf(25, 1, { clipSigma: null, systematics: [{ name: 'anchor_distance', error: 0.026 }] });
-		const large = hostOf(400, 2, { clipSigma: null, systematics: [{ name: 'anchor_distance', error: 0.026 }] });
+		const small = hostOf(25, 1, { clipSigma: null, budget: { fixed: [{ id: 'anchor_distance', label: 'anchor', value: 0.026 }] } });
+		const large = hostOf(400, 2, { clipSigma: null, budget: { fixed: [{ id: 'anchor_distance', label: 'anchor', value: 0.026 }] } });
 		const perStar = Math.hypot(0.1, 0.08);
 		expect(small.mu0.statistical).toBeCloseTo(perStar / 5, 12);
 		expect(large.mu0.statistical).toBeCloseTo(perStar / 20, 12);
@@ -68,9 +68,9 @@ describe('host-galaxy distance', () => {
 	test('the coefficient term is evaluated once at the host’s weighted mean log P: √(σ_a² + Δ²σ_b²)', () => {
 		const host = hostOf(60, 3, { clipSigma: null });
 		const dLogP = host.meanLogPeriod - 1;
-		expect(host.systematicTerms[0]).toEqual({ name: 'relation_coefficients', error: expect.any(Number) });
-		expect(host.systematicTerms[0].error).toBeCloseTo(Math.hypot(0.02, dLogP * 0.05), 14);
-		expect(host.mu0.systematic).toBeCloseTo(host.systematicTerms[0].error, 14);
+		expect(host.errorBudget[0]).toMatchObject({ id: 'relation_coefficients', value: expect.any(Number) });
+		expect(host.errorBudget[0].value).toBeCloseTo(Math.hypot(0.02, dLogP * 0.05), 14);
+		expect(host.mu0.systematic).toBeCloseTo(host.errorBudget[0].value, 14);
 	});
 
 	test('σ-clipping rejects an injected 1.5 mag outlier and records its standardized residual', () => {
@@ -102,7 +102,7 @@ describe('host-galaxy distance', () => {
 	test('no stars, or a negative systematic, are refused', () => {
 		expect(() => combineHostDistance(relation, [])).toThrow(CalibrationInputError);
 		const stars = applyRelation(relation, syntheticHost(5, 5)).stars;
-		expect(() => combineHostDistance(relation, stars, { systematics: [{ name: 'x', error: -1 }] })).toThrow(
+		expect(() => combineHostDistance(relation, stars, { budget: { fixed: [{ id: 'x', label: 'x', value: -1 }] } })).toThrow(
 			CalibrationInputError
 		);
 	});
