@@ -8,8 +8,10 @@ import {
 	hubbleConstant,
 	peculiarVelocityCaution,
 	recessionVelocity,
-	redshiftFromLine
+	redshiftFromLine,
+	shiftRedshift
 } from './velocity';
+import { ASTROPY_MISSING_REASON, astropyVersion, hasAstropy, runPython } from '../../../tests/support/astropy';
 
 /** Smallest angle between two directions on the sphere (deg). */
 function separationDeg(l1: number, b1: number, l2: number, b2: number): number {
@@ -127,5 +129,45 @@ describe('H0 and the peculiar-velocity caution', () => {
 			peculiarVelocityKmS: 0
 		});
 		expect(noPec.error).toBeLessThan(h0.error / 2);
+	});
+});
+
+describe('frame corrections against astropy', () => {
+	test.skipIf(!hasAstropy())(
+		`ICRS → Galactic (l, b) agrees with astropy ${astropyVersion() ?? ''} SkyCoord(...).galactic to 2e-4° at nine positions${hasAstropy() ? '' : ` — ${ASTROPY_MISSING_REASON}`}`,
+		() => {
+			const started = performance.now();
+			const positions = [
+				[0, 0],
+				[193.4404, -6.6222],
+				[10.6847, 41.269],
+				[83.8221, -5.3911],
+				[266.405, -28.936],
+				[150.1, 2.2],
+				[300, 60],
+				[45, -75],
+				[359.9, 89]
+			];
+			const astropy = runPython<[number, number][]>(
+				`from astropy.coordinates import SkyCoord
+import astropy.units as u
+c = SkyCoord(ra=[p[0] for p in data]*u.deg, dec=[p[1] for p in data]*u.deg, frame='icrs').galactic
+print(json.dumps([[float(l), float(b)] for l, b in zip(c.l.deg, c.b.deg)]))`,
+				positions
+			);
+			positions.forEach(([ra, dec], i) => {
+				const ours = equatorialToGalactic(ra, dec);
+				// FK5 J2000 pole constants vs astropy's ICRS → Galactic: they differ by tens of milliarcseconds.
+				expect(separationDeg(ours.lDeg, ours.bDeg, astropy[i][0], astropy[i][1])).toBeLessThan(2e-4);
+			});
+			console.info(`astropy galactic check: ${(performance.now() - started).toFixed(0)} ms`);
+		}
+	);
+
+	test('a frame velocity composes with z: 1 + z′ = (1 + z)(1 + v/c), and the error scales with it', () => {
+		const shifted = shiftRedshift({ value: 0.01, error: 1e-5 }, 300);
+		expect(shifted.value).toBeCloseTo(1.01 * (1 + 300 / SPEED_OF_LIGHT_KM_S) - 1, 15);
+		expect(shifted.error).toBeCloseTo(1e-5 * (1 + 300 / SPEED_OF_LIGHT_KM_S), 18);
+		expect(shiftRedshift({ value: 0.02, error: 0 }, 0).value).toBeCloseTo(0.02, 15);
 	});
 });

@@ -163,14 +163,29 @@ export function heliocentricToCmb(
 export interface HubbleConstantInput {
 	/** Recession velocity (km/s), ideally in the CMB frame. */
 	velocity: Measured;
+	/** The distance with its total 1σ error. */
 	distanceMpc: Measured;
+	/** The distance's statistical and systematic parts (Mpc), when known; their quadrature sum is the total. */
+	distanceSplitMpc?: { statistical: number; systematic: number };
 	/** σ_pec (km/s); default 250 (common practice). */
 	peculiarVelocityKmS?: number;
 }
 
 export interface HubbleConstantEstimate extends Measured {
-	/** Fractional contributions to σ_H0/H0, each a 1σ term added in quadrature. */
-	budget: { distance: number; velocity: number; peculiarVelocity: number };
+	/**
+	 * Fractional contributions to σ_H0/H0, each a 1σ term added in quadrature. `distance` is the
+	 * quadrature sum of `distanceStatistical` and `distanceSystematic` when the split is known.
+	 */
+	budget: {
+		distance: number;
+		distanceStatistical: number | null;
+		distanceSystematic: number | null;
+		velocity: number;
+		peculiarVelocity: number;
+	};
+	/** σ_H0 without the distance's systematic part, and that part alone (km/s/Mpc). */
+	statisticalError: number;
+	systematicError: number | null;
 	peculiarVelocityKmS: number;
 	caution: CalibrationWarning;
 }
@@ -194,7 +209,9 @@ export function peculiarVelocityCaution(
 }
 
 /**
- * H0 = v/d (km/s/Mpc), with (σ_H0/H0)² = (σ_d/d)² + (σ_v/v)² + (σ_pec/v)².
+ * H0 = v/d (km/s/Mpc), with (σ_H0/H0)² = (σ_d/d)² + (σ_v/v)² + (σ_pec/v)², where
+ * σ_d² = σ_d,stat² + σ_d,sys² when the split is given: the distance's systematic part is reported
+ * apart from the statistical terms and from the peculiar velocity.
  */
 export function hubbleConstant(input: HubbleConstantInput): HubbleConstantEstimate {
 	const { velocity, distanceMpc } = input;
@@ -204,18 +221,60 @@ export function hubbleConstant(input: HubbleConstantInput): HubbleConstantEstima
 	requirePositive('distance_mpc', distanceMpc.value);
 	requireNonNegative('distance_mpc_error', distanceMpc.error);
 	requireNonNegative('peculiar_velocity_km_s', sigmaPec);
+	const split = input.distanceSplitMpc;
+	if (split) {
+		requireNonNegative('distance_mpc_err_stat', split.statistical);
+		requireNonNegative('distance_mpc_err_sys', split.systematic);
+	}
 	const value = velocity.value / distanceMpc.value;
 	const budget = {
 		distance: distanceMpc.error / distanceMpc.value,
+		distanceStatistical: split ? split.statistical / distanceMpc.value : null,
+		distanceSystematic: split ? split.systematic / distanceMpc.value : null,
 		velocity: velocity.error / velocity.value,
 		peculiarVelocity: sigmaPec / velocity.value
 	};
 	const error = value * Math.hypot(budget.distance, budget.velocity, budget.peculiarVelocity);
+	const statisticalError =
+		value * Math.hypot(budget.distanceStatistical ?? budget.distance, budget.velocity, budget.peculiarVelocity);
 	return {
 		value,
 		error,
+		statisticalError,
+		systematicError: budget.distanceSystematic === null ? null : value * budget.distanceSystematic,
 		budget,
 		peculiarVelocityKmS: sigmaPec,
 		caution: peculiarVelocityCaution(velocity.value, sigmaPec)
 	};
+}
+
+/**
+ * Adds a frame's velocity to a redshift: 1 + z' = (1 + z)(1 + v/c) (redshifts compose by
+ * multiplication; first order in v/c for the frame's own motion — common practice). Used for the
+ * barycentric correction of a topocentric line and for the CMB dipole, before any q0 term.
+ */
+export function shiftRedshift(z: Measured, frameVelocityKmS: number): Measured {
+	if (!Number.isFinite(frameVelocityKmS)) fail('frame_velocity_km_s', 'must be finite');
+	const factor = 1 + frameVelocityKmS / SPEED_OF_LIGHT_KM_S;
+	return { value: (1 + z.value) * factor - 1, error: z.error * factor };
+}
+
+/** Cautions every H0 from one galaxy carries. */
+export function singleGalaxyCautions(fromLine: boolean): CalibrationWarning[] {
+	const cautions: CalibrationWarning[] = [
+		{
+			code: 'illustrative_single_galaxy',
+			message:
+				'an H0 from one galaxy is illustrative: a measurement of H0 combines many galaxies in the Hubble flow, each with its own distance ladder systematics'
+		}
+	];
+	if (fromLine) {
+		cautions.push({
+			code: 'line_includes_rotation',
+			message:
+				"the Hα of a single HII region includes the disc's rotation at that point (up to ~200–300 km/s in a large spiral, common practice); the systemic velocity needs the galaxy's centre or its rotation curve",
+			field: 'observed_wavelength_nm'
+		});
+	}
+	return cautions;
 }
