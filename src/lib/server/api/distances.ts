@@ -48,11 +48,13 @@ export const DistanceStarSchema = registerApiSchema(
 			population: z.enum(POPULATION_IDS).nullable().optional().describe('Classification of the star, if known.'),
 			magnitude_system: z
 				.enum(['Vega', 'AB'])
+				.nullable()
 				.optional()
 				.describe("The star's magnitude system; one other than the relation's is refused (422), an absent one is assumed equal (with a warning)."),
 			wesenheit_ratio: z
 				.number()
 				.positive()
+				.nullable()
 				.optional()
 				.describe(
 					"R of the star's Wesenheit magnitude W = m1 − R·(m2 − m3); one other than the relation's is refused (422), an absent one is assumed equal (with a warning)."
@@ -345,11 +347,11 @@ export function readStarColumns(stars: readonly unknown[]): StarColumnsInput {
 			else (populations ??= new Array<PopulationId | null>(n).fill(null))[i] = population;
 		}
 		const system = star.magnitude_system;
-		if (system !== undefined) {
+		if (system !== undefined && system !== null) {
 			if (system !== 'Vega' && system !== 'AB') problems.add('magnitude_system', 'must be "Vega" or "AB"');
 			else (magnitudeSystems ??= new Array<'Vega' | 'AB' | null>(n).fill(null))[i] = system;
 		}
-		if (star.wesenheit_ratio !== undefined) {
+		if (star.wesenheit_ratio !== undefined && star.wesenheit_ratio !== null) {
 			(wesenheitRatios ??= new Float64Array(n).fill(Number.NaN))[i] = problems.number(
 				'wesenheit_ratio',
 				star.wesenheit_ratio,
