@@ -285,7 +285,7 @@ const wBand: Relation = {
 const wStars = Array.from({ length: 40 }, (_, i) => ({
 	id: `w-${i} (invented)`,
 	period_days: 4 + i * 0.9,
-	mean_mag: 29.4 - 5.9 - 3.3 * (Math.log10(4 + i * 0.9) - 1) + ((i * 37) % 11 - 5) * 0.01,
+	mean_mag: 29.4 - 5.9 - 3.3 * (Math.log10(4 + i * 0.9) - 1) + (((i * 37) % 11) - 5) * 0.01,
 	mean_mag_err: 0.05
 }));
 
@@ -302,28 +302,43 @@ describe('photometric systems, error budgets and intervals through the distance 
 		});
 		const star = { id: 'h-1', period_days: 20, mean_mag: 25.3, mean_mag_err: 0.06 };
 		const refused = await refusal(() =>
-			computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: [{ ...star, magnitude_system: 'Vega' }] }))
+			computeDistances(
+				em(),
+				null,
+				readDistanceEnvelope({ relation: ref, stars: [{ ...star, magnitude_system: 'Vega' }] })
+			)
 		);
 		expect(refused.status).toBe(422);
 		expect(refused.errors[0].path).toBe('stars/0/magnitude_system');
 		expect(refused.errors[0].message).toContain('is Vega but');
 		expect(refused.errors[0].message).toContain('AB');
 		const accepted = toDistanceResponse(
-			await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: [{ ...star, magnitude_system: 'AB' }] }))
+			await computeDistances(
+				em(),
+				null,
+				readDistanceEnvelope({ relation: ref, stars: [{ ...star, magnitude_system: 'AB' }] })
+			)
 		);
 		expect(accepted.warnings.map((w) => w.code)).not.toContain('magnitude_system_assumed');
-		const unsaid = toDistanceResponse(await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: [star] })));
+		const unsaid = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: [star] }))
+		);
 		expect(unsaid.warnings.find((w) => w.code === 'magnitude_system_assumed')?.message).toContain('taken to be AB');
 	});
 
 	test('a Wesenheit R other than the relation’s is refused; an absent one is assumed with a warning; R on a single band is refused', async () => {
 		const { ref } = await pinPublishedRelation(orm, { slug: unique('w-vi-r'), title: 'W_VI (test)', relation: wBand });
-		const withR = (r: number | undefined) => wStars.map((s, i) => (i === 3 && r !== undefined ? { ...s, wesenheit_ratio: r } : s));
-		const refused = await refusal(() => computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: withR(1.3) })));
+		const withR = (r: number | undefined) =>
+			wStars.map((s, i) => (i === 3 && r !== undefined ? { ...s, wesenheit_ratio: r } : s));
+		const refused = await refusal(() =>
+			computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: withR(1.3) }))
+		);
 		expect(refused.status).toBe(422);
 		expect(refused.errors.map((e) => e.path)).toEqual(['stars/3/wesenheit_ratio']);
 		expect(refused.errors[0].message).toContain('R = 1.55');
-		const same = toDistanceResponse(await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: withR(1.55) })));
+		const same = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: withR(1.55) }))
+		);
 		expect(same.warnings.find((w) => w.code === 'wesenheit_ratio_assumed')?.details?.count).toBe(39);
 		expect(same.relation.wesenheit_ratio).toBe(1.55);
 		const single = await refusal(() => run({ stars: [{ ...workedStar, wesenheit_ratio: 1.55 }] }));
@@ -332,8 +347,14 @@ describe('photometric systems, error budgets and intervals through the distance 
 	});
 
 	test('a version frozen before systematics were recorded says so; one frozen to the engine-2 contract adds its anchor once', async () => {
-		const old = await pinPublishedRelation(orm, { slug: unique('w-vi-old'), title: 'W_VI 1.x (test)', relation: wBand });
-		const before = toDistanceResponse(await computeDistances(em(), null, readDistanceEnvelope({ relation: old.ref, stars: wStars })));
+		const old = await pinPublishedRelation(orm, {
+			slug: unique('w-vi-old'),
+			title: 'W_VI 1.x (test)',
+			relation: wBand
+		});
+		const before = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: old.ref, stars: wStars }))
+		);
 		expect(before.relation.systematics_recorded).toBe(false);
 		expect(before.warnings.map((w) => w.code)).toContain('systematics_not_recorded');
 		expect(before.combined.error_budget.map((t) => t.id)).toEqual(['relation_coefficients']);
@@ -358,12 +379,19 @@ describe('photometric systems, error budgets and intervals through the distance 
 							}
 						]
 					},
-					fit_quality: { reduced_chi_square: 7.52, degrees_of_freedom: 60, covariance_scaled: true, errors_too_small: true },
+					fit_quality: {
+						reduced_chi_square: 7.52,
+						degrees_of_freedom: 60,
+						covariance_scaled: true,
+						errors_too_small: true
+					},
 					wesenheit_ratio: 1.55
 				}
 			}
 		});
-		const after = toDistanceResponse(await computeDistances(em(), null, readDistanceEnvelope({ relation: frozen.ref, stars: wStars })));
+		const after = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: frozen.ref, stars: wStars }))
+		);
 		expect(after.relation.systematics_recorded).toBe(true);
 		expect(after.warnings.map((w) => w.code)).not.toContain('systematics_not_recorded');
 		expect(after.warnings.find((w) => w.code === 'relation_errors_too_small')?.message).toContain('7.52');
@@ -400,7 +428,9 @@ describe('photometric systems, error budgets and intervals through the distance 
 		expect(term('crowding')).toBe(0.015);
 		expect(c.n_assumed_metallicity).toBe(1);
 		expect(Math.abs(c.mu0_err_sys - Math.hypot(...c.error_budget.map((t) => t.value)))).toBeLessThan(1e-15);
-		expect(response.warnings.map((w) => w.code)).toEqual(expect.arrayContaining(['metallicity_scale_assumed', 'metallicity_assumed']));
+		expect(response.warnings.map((w) => w.code)).toEqual(
+			expect.arrayContaining(['metallicity_scale_assumed', 'metallicity_assumed'])
+		);
 		// 16th/84th percentiles of 10^(μ/5+1) for Gaussian μ are the transforms of μ ∓ σ (monotonic map).
 		expect(c.distance_mpc_p16).toBeCloseTo(10 ** ((c.mu0 - c.mu0_err) / 5 + 1) / 1e6, 12);
 		expect(c.distance_mpc_p84).toBeCloseTo(10 ** ((c.mu0 + c.mu0_err) / 5 + 1) / 1e6, 12);

@@ -3,7 +3,8 @@ import { estimateHubble, HubbleRequestSchema } from '../../src/lib/server/api/hu
 
 const C = 299_792.458; // km/s, SI exact
 
-const request = (body: Record<string, unknown>) => HubbleRequestSchema.parse({ velocity_frame: 'heliocentric', ...body });
+const request = (body: Record<string, unknown>) =>
+	HubbleRequestSchema.parse({ velocity_frame: 'heliocentric', ...body });
 
 describe('POST /api/v1/hubble semantics', () => {
 	test('a measured Hα line in air gives z, v = cz and H0 = v/d with its error budget', () => {
@@ -164,7 +165,9 @@ describe('POST /api/v1/hubble semantics', () => {
 			})
 		);
 		expect(Math.abs(result.velocity_km_s - 1902)).toBeLessThan(3);
-		console.info(`NGC 4775 v_CMB = ${result.velocity_km_s.toFixed(1)} km/s (NED 1902) in ${(performance.now() - started).toFixed(1)} ms`);
+		console.info(
+			`NGC 4775 v_CMB = ${result.velocity_km_s.toFixed(1)} km/s (NED 1902) in ${(performance.now() - started).toFixed(1)} ms`
+		);
 	});
 
 	test('the distance systematic is its own line of H0’s budget, apart from the statistical terms and the peculiar velocity', () => {
@@ -185,7 +188,12 @@ describe('POST /api/v1/hubble semantics', () => {
 		expect(result.h0_err_sys).toBeCloseTo(h0 * 0.025, 12);
 		expect(result.h0_err_stat).toBeCloseTo(h0 * Math.hypot(0.01, 10 / 1400, 250 / 1400), 12);
 		expect(result.h0_err).toBeCloseTo(Math.hypot(result.h0_err_stat, result.h0_err_sys!), 12);
-		const half = HubbleRequestSchema.safeParse({ ...result, velocity_frame: 'cmb', distance_mpc: 20, distance_mpc_err_sys: 1 });
+		const half = HubbleRequestSchema.safeParse({
+			...result,
+			velocity_frame: 'cmb',
+			distance_mpc: 20,
+			distance_mpc_err_sys: 1
+		});
 		expect(half.success).toBe(false);
 	});
 });

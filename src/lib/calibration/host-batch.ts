@@ -276,7 +276,11 @@ export function hostDistanceBatch(
 			code: 'metallicity_assumed',
 			message: `${combined.assumedMetallicityCount} of the ${combined.nUsed} stars used have no [Fe/H] and took ${source}; its error is the host_metallicity term of the error budget`,
 			field: 'feh',
-			details: { count: combined.assumedMetallicityCount, assumed_feh: hostFeh ?? f0, source: hostFeh === null ? 'pivot' : 'host' }
+			details: {
+				count: combined.assumedMetallicityCount,
+				assumed_feh: hostFeh ?? f0,
+				source: hostFeh === null ? 'pivot' : 'host'
+			}
 		});
 	}
 	return {

@@ -54,8 +54,14 @@ function hostOf(n: number, seed: number, options = {}) {
 
 describe('host-galaxy distance', () => {
 	test('statistical error shrinks as 1/√N; the systematic does not (inverse-variance mean; PRODUCT.md)', () => {
-		const small = hostOf(25, 1, { clipSigma: null, budget: { fixed: [{ id: 'anchor_distance', label: 'anchor', value: 0.026 }] } });
-		const large = hostOf(400, 2, { clipSigma: null, budget: { fixed: [{ id: 'anchor_distance', label: 'anchor', value: 0.026 }] } });
+		const small = hostOf(25, 1, {
+			clipSigma: null,
+			budget: { fixed: [{ id: 'anchor_distance', label: 'anchor', value: 0.026 }] }
+		});
+		const large = hostOf(400, 2, {
+			clipSigma: null,
+			budget: { fixed: [{ id: 'anchor_distance', label: 'anchor', value: 0.026 }] }
+		});
 		const perStar = Math.hypot(0.1, 0.08);
 		expect(small.mu0.statistical).toBeCloseTo(perStar / 5, 12);
 		expect(large.mu0.statistical).toBeCloseTo(perStar / 20, 12);
@@ -106,9 +112,9 @@ describe('host-galaxy distance', () => {
 	test('no stars, or a negative systematic, are refused', () => {
 		expect(() => combineHostDistance(relation, [])).toThrow(CalibrationInputError);
 		const stars = applyRelation(relation, syntheticHost(5, 5)).stars;
-		expect(() => combineHostDistance(relation, stars, { budget: { fixed: [{ id: 'x', label: 'x', value: -1 }] } })).toThrow(
-			CalibrationInputError
-		);
+		expect(() =>
+			combineHostDistance(relation, stars, { budget: { fixed: [{ id: 'x', label: 'x', value: -1 }] } })
+		).toThrow(CalibrationInputError);
 	});
 });
 
@@ -123,7 +129,11 @@ function ogleWesenheit(file: string): { id: string; logPeriod: number; w: number
 		.split('\n')
 		.map((line) => line.split(','))
 		.filter((f) => f[1] === 'F' && Number(f[4]) > 0 && Number(f[5]) > 0)
-		.map((f) => ({ id: f[0], logPeriod: Math.log10(Number(f[7])), w: Number(f[4]) - 1.55 * (Number(f[5]) - Number(f[4])) }));
+		.map((f) => ({
+			id: f[0],
+			logPeriod: Math.log10(Number(f[7])),
+			w: Number(f[4]) - 1.55 * (Number(f[5]) - Number(f[4]))
+		}));
 }
 
 /** μ_LMC = 18.477 ± 0.026 (Pietrzyński et al. 2019, Nature 567, 200, from memory). */

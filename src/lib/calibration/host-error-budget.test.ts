@@ -75,7 +75,7 @@ const MAG_ERR = 0.1;
 /** Invented host: log P uniform-ish in [0.8, 1.6], no star with its own [Fe/H], E(B−V) = 0.1 exactly. */
 function inventedHost(n: number): HostBatchInput {
 	const gauss = createGaussianStream(20261206 + n);
-	const logP = Float64Array.from({ length: n }, (_, i) => 0.8 + (0.8 * ((i * 0.6180339887) % 1)));
+	const logP = Float64Array.from({ length: n }, (_, i) => 0.8 + 0.8 * ((i * 0.6180339887) % 1));
 	const ratio = bandExtinctionPerEbv('ccm89', 'V', 3.1);
 	const m = (x: number) => -3.944 - 2.67 * (x - 1) - 0.2 * (-0.3 - 0);
 	return {
@@ -115,27 +115,31 @@ describe('an invented host’s shared terms count once, whatever N (synthetic, i
 	const record = relationBudgetRecord(frozenBudgetKeys);
 	const perStar = Math.hypot(MAG_ERR, 0.21);
 
-	test.each([10, 100, 1000, 10_000])('N = %i: σ_sys is the quadrature sum of the injected terms to 1e-9; σ_stat = σ_i/√N', (n) => {
-		const batch = hostDistanceBatch(relation, inventedHost(n), {
-			clipSigma: null,
-			relationTerms: record.terms,
-			shared
-		});
-		const c = batch.combined;
-		const expected = expectedSystematic(c.meanLogPeriod);
-		expect(c.errorBudget.map((t) => t.id)).toEqual(expected.terms.map(([id]) => id));
-		c.errorBudget.forEach((term, i) => expect(Math.abs(term.value - expected.terms[i][1])).toBeLessThan(1e-12));
-		expect(Math.abs(c.mu0.systematic - expected.total)).toBeLessThan(1e-9);
-		// Every star has the same random error, so 1/√Σw = σ_i/√N exactly.
-		expect(c.mu0.statistical * Math.sqrt(n)).toBeCloseTo(perStar, 12);
-		expect(c.assumedMetallicityCount).toBe(n);
-		expect(Math.abs(c.mu0.value - TRUE_MU)).toBeLessThan(5 * c.mu0.statistical);
-		expect(c.mu0.total).toBeCloseTo(Math.hypot(c.mu0.statistical, c.mu0.systematic), 14);
-	});
+	test.each([10, 100, 1000, 10_000])(
+		'N = %i: σ_sys is the quadrature sum of the injected terms to 1e-9; σ_stat = σ_i/√N',
+		(n) => {
+			const batch = hostDistanceBatch(relation, inventedHost(n), {
+				clipSigma: null,
+				relationTerms: record.terms,
+				shared
+			});
+			const c = batch.combined;
+			const expected = expectedSystematic(c.meanLogPeriod);
+			expect(c.errorBudget.map((t) => t.id)).toEqual(expected.terms.map(([id]) => id));
+			c.errorBudget.forEach((term, i) => expect(Math.abs(term.value - expected.terms[i][1])).toBeLessThan(1e-12));
+			expect(Math.abs(c.mu0.systematic - expected.total)).toBeLessThan(1e-9);
+			// Every star has the same random error, so 1/√Σw = σ_i/√N exactly.
+			expect(c.mu0.statistical * Math.sqrt(n)).toBeCloseTo(perStar, 12);
+			expect(c.assumedMetallicityCount).toBe(n);
+			expect(Math.abs(c.mu0.value - TRUE_MU)).toBeLessThan(5 * c.mu0.statistical);
+			expect(c.mu0.total).toBeCloseTo(Math.hypot(c.mu0.statistical, c.mu0.systematic), 14);
+		}
+	);
 
 	test('σ_sys does not fall with N while σ_stat does; the budget compared with Riess et al. 2016', () => {
 		const budgets = [10, 10_000].map(
-			(n) => hostDistanceBatch(relation, inventedHost(n), { clipSigma: null, relationTerms: record.terms, shared }).combined
+			(n) =>
+				hostDistanceBatch(relation, inventedHost(n), { clipSigma: null, relationTerms: record.terms, shared }).combined
 		);
 		expect(budgets[1].mu0.statistical / budgets[0].mu0.statistical).toBeCloseTo(Math.sqrt(10 / 10_000), 12);
 		// Both hosts share σ_sys up to the change of ⟨log P⟩ with the sample (< 0.002 mag here).
@@ -155,7 +159,10 @@ describe('an invented host’s shared terms count once, whatever N (synthetic, i
 			{ riess2016: 'anchor distance', candlebook: 'anchor_distance (relation, frozen)' },
 			{ riess2016: 'PL mean in anchor', candlebook: 'relation_coefficients, parallax_zero_point' },
 			{ riess2016: 'PL mean in SN hosts', candlebook: 'σ_stat; crowding (host input)' },
-			{ riess2016: 'reddening / metallicity / PL slope', candlebook: 'foreground_reddening, host_metallicity, metallicity_scale, adopted_slope, fixed_slope' },
+			{
+				riess2016: 'reddening / metallicity / PL slope',
+				candlebook: 'foreground_reddening, host_metallicity, metallicity_scale, adopted_slope, fixed_slope'
+			},
 			{ riess2016: 'SN Ia mean in hosts; a_B', candlebook: 'left to the user (no SN Ia step)' },
 			{ riess2016: 'peculiar velocities', candlebook: "H0's peculiar_velocity term" }
 		]);
@@ -163,7 +170,12 @@ describe('an invented host’s shared terms count once, whatever N (synthetic, i
 	});
 
 	test('an old version (no budget keys) records nothing; a malformed one is refused with the field named', () => {
-		expect(relationBudgetRecord({ ref: 'x@1' })).toEqual({ recorded: false, terms: [], fitQuality: null, wesenheitRatio: null });
+		expect(relationBudgetRecord({ ref: 'x@1' })).toEqual({
+			recorded: false,
+			terms: [],
+			fitQuality: null,
+			wesenheitRatio: null
+		});
 		expect(() => relationBudgetRecord({ systematics: { terms: [{ id: 'anchor_distance', error: -1 }] } })).toThrow(
 			/systematics\.terms\.0/
 		);

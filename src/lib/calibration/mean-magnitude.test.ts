@@ -162,6 +162,7 @@ describe.skipIf(!haveCurves)(`OGLE-III I-band light curves (Soszyński et al. 20
 			const diff = means.magnitudeMean.value - means.intensityMean.value;
 			expect(diff).toBeGreaterThan(0);
 			expect(diff).toBeLessThan(0.05);
-		}
+		},
+		60_000
 	);
 });

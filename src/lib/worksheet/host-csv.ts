@@ -16,7 +16,15 @@ export const HOST_COLUMNS = [
 	'feh',
 	'feh_err'
 ] as const;
-const OPTIONAL_COLUMNS = ['ebv', 'ebv_err', 'feh', 'feh_err', 'population', 'magnitude_system', 'wesenheit_ratio'] as const;
+const OPTIONAL_COLUMNS = [
+	'ebv',
+	'ebv_err',
+	'feh',
+	'feh_err',
+	'population',
+	'magnitude_system',
+	'wesenheit_ratio'
+] as const;
 /** Optional columns beyond the numbers: what a star says about its own photometric system. */
 const SYSTEM_COLUMNS = ['population', 'magnitude_system', 'wesenheit_ratio'];
 /** Result columns of the worksheet's own CSV export: read past, so an export can be loaded again. */

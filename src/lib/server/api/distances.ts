@@ -50,7 +50,9 @@ export const DistanceStarSchema = registerApiSchema(
 				.enum(['Vega', 'AB'])
 				.nullable()
 				.optional()
-				.describe("The star's magnitude system; one other than the relation's is refused (422), an absent one is assumed equal (with a warning)."),
+				.describe(
+					"The star's magnitude system; one other than the relation's is refused (422), an absent one is assumed equal (with a warning)."
+				),
 			wesenheit_ratio: z
 				.number()
 				.positive()
@@ -90,7 +92,9 @@ const requestShape = {
 		.describe("1σ (mag/dex) of the relation's slope as adopted for this host; enters at the host's mean log P."),
 	crowding_correction: z
 		.object({
-			value: finite.describe('Added to every apparent magnitude (mag); positive when blending made the stars look too bright.'),
+			value: finite.describe(
+				'Added to every apparent magnitude (mag); positive when blending made the stars look too bright.'
+			),
 			error: nonNegative.describe('Its 1σ (mag), a systematic of the host.')
 		})
 		.strict()
@@ -161,7 +165,12 @@ export const DistanceResponseSchema = registerApiSchema(
 			clip_sigma: z.number().nullable(),
 			foreground_ebv_err: z.number().nullable(),
 			host_metallicity: z
-				.object({ value: z.number(), error: z.number(), scale: z.enum(['feh', 'o_h']), conversion_error: z.number().nullable() })
+				.object({
+					value: z.number(),
+					error: z.number(),
+					scale: z.enum(['feh', 'o_h']),
+					conversion_error: z.number().nullable()
+				})
 				.nullable(),
 			adopted_slope_err: z.number().nullable(),
 			crowding_correction: z.object({ value: z.number(), error: z.number() }).nullable()
@@ -433,7 +442,9 @@ export function readDistanceEnvelope(body: unknown): DistanceInputs {
 				}
 			: {}),
 		...(adopted_slope_err === undefined ? {} : { slopeError: adopted_slope_err }),
-		...(crowding_correction ? { crowding: { correction: crowding_correction.value, error: crowding_correction.error } } : {})
+		...(crowding_correction
+			? { crowding: { correction: crowding_correction.value, error: crowding_correction.error } }
+			: {})
 	};
 	return { relation, stars, extinctionLaw: extinction_law, rV: r_v, clipSigma: clip_sigma, shared };
 }

@@ -74,10 +74,16 @@ export const HubbleRequestSchema = registerApiSchema(
 			}
 			const hasTotal = body.distance_mpc_err !== undefined;
 			const splitParts = [body.distance_mpc_err_stat, body.distance_mpc_err_sys].filter((v) => v !== undefined).length;
-			if (hasTotal === (splitParts > 0) || splitParts === 1) {
+			if (hasTotal === splitParts > 0 || splitParts === 1) {
 				ctx.addIssue({
 					code: 'custom',
-					path: [splitParts === 1 ? (body.distance_mpc_err_stat === undefined ? 'distance_mpc_err_stat' : 'distance_mpc_err_sys') : 'distance_mpc_err'],
+					path: [
+						splitParts === 1
+							? body.distance_mpc_err_stat === undefined
+								? 'distance_mpc_err_stat'
+								: 'distance_mpc_err_sys'
+							: 'distance_mpc_err'
+					],
 					message: 'give either distance_mpc_err, or both distance_mpc_err_stat and distance_mpc_err_sys'
 				});
 			}
@@ -129,9 +135,13 @@ export const HubbleResponseSchema = registerApiSchema(
 		cmb_correction_km_s: z.number().nullable(),
 		h0: z.number(),
 		h0_err: z.number(),
-		h0_err_stat: z.number().describe('σ_H0 from the distance statistical error, the velocity and the peculiar velocity.'),
+		h0_err_stat: z
+			.number()
+			.describe('σ_H0 from the distance statistical error, the velocity and the peculiar velocity.'),
 		h0_err_sys: z.number().nullable().describe("σ_H0 from the distance's systematic error alone (null if not split)."),
-		illustrative: z.literal(true).describe('An H0 from one galaxy illustrates the method; it is not a measurement of H0.'),
+		illustrative: z
+			.literal(true)
+			.describe('An H0 from one galaxy illustrates the method; it is not a measurement of H0.'),
 		error_budget: z
 			.object({
 				distance: z.number().describe('Total distance term (the quadrature sum of the next two when split).'),
@@ -157,7 +167,8 @@ export type HubbleResponse = z.infer<typeof HubbleResponseSchema>;
 export function estimateHubble(body: HubbleRequest): HubbleResponse {
 	try {
 		const barycentric = body.velocity_frame === 'topocentric' ? (body.barycentric_correction_km_s ?? 0) : null;
-		const position = body.ra_deg !== undefined && body.dec_deg !== undefined ? { raDeg: body.ra_deg, decDeg: body.dec_deg } : null;
+		const position =
+			body.ra_deg !== undefined && body.dec_deg !== undefined ? { raDeg: body.ra_deg, decDeg: body.dec_deg } : null;
 		const correction = position === null ? null : cmbDipoleProjection(position);
 		let measured: Measured | null = null;
 		let z: Measured | null = null;
@@ -195,7 +206,11 @@ export function estimateHubble(body: HubbleRequest): HubbleResponse {
 		});
 		const frame = body.velocity_frame === 'cmb' || correction !== null ? 'cmb' : 'heliocentric';
 		const cautions: HubbleResponse['cautions'] = [estimate.caution, ...singleGalaxyCautions(measured !== null)].map(
-			(caution) => ({ code: caution.code, message: caution.message, ...(caution.details ? { details: caution.details } : {}) })
+			(caution) => ({
+				code: caution.code,
+				message: caution.message,
+				...(caution.details ? { details: caution.details } : {})
+			})
 		);
 		if (frame === 'heliocentric') {
 			cautions.push({
