@@ -2,30 +2,11 @@ import { describe, expect, test } from 'vitest';
 import { applyRelation, type StarPhotometry } from './apply';
 import { combineHostDistance } from './host-distance';
 import { hostDistanceBatch, type HostBatchInput } from './host-batch';
-import type { Relation } from './types';
 import { hasReferenceData, missingReason, readReferenceFile } from '../../../tests/support/reference-data';
+import type { Relation } from './types';
+import { INVENTED_V_BAND } from '../../../tests/fixtures/invented-v-band';
 
-/** Invented V-band relation with a metallicity term and a full covariance (the shape of apply.test.ts's). */
-const vBand: Relation = {
-	bandId: 'V',
-	population: 'classical_fundamental',
-	magnitudeSystem: 'Vega',
-	coefficients: { zeroPoint: -3.944, slope: -2.67, metallicityTerm: -0.2 },
-	pivotLogPeriod: 1,
-	pivotFeh: 0,
-	covariance: {
-		axes: ['zero_point', 'slope', 'metallicity_term'],
-		matrix: [
-			[0.028 ** 2, 0.0004, 0.0002],
-			[0.0004, 0.095 ** 2, -0.0003],
-			[0.0002, -0.0003, 0.05 ** 2]
-		]
-	},
-	intrinsicScatter: 0.21,
-	validity: { logPeriodMin: 0.4, logPeriodMax: 1.8, fehMin: -0.6, fehMax: 0.4 },
-	extinctionLaw: 'ccm89',
-	rV: 3.1
-};
+const vBand = INVENTED_V_BAND;
 
 function columnsOf(stars: StarPhotometry[]): HostBatchInput {
 	const column = (pick: (star: StarPhotometry) => number | null | undefined) =>

@@ -3,35 +3,15 @@ import { createGaussianStream } from './fit';
 import { bandExtinctionPerEbv } from './extinction';
 import { hostDistanceBatch, type HostBatchInput, type HostSharedInputs } from './host-batch';
 import { relationBudgetRecord } from './relation-systematics';
-import type { Relation } from './types';
+import { INVENTED_V_BAND } from '../../../tests/fixtures/invented-v-band';
 
 /**
- * An invented V-band relation with a metallicity term, frozen "to the contract" with three relation
- * systematics, applied to an invented host whose stars share every host-level term. Numbers are of
- * realistic size and otherwise made up.
+ * An invented V-band relation with a metallicity term, frozen to the engine-2 content contract with three
+ * relation systematics, applied to an invented host whose stars share every host-level term.
  */
-const relation: Relation = {
-	bandId: 'V',
-	population: 'classical_fundamental',
-	magnitudeSystem: 'Vega',
-	coefficients: { zeroPoint: -3.944, slope: -2.67, metallicityTerm: -0.2 },
-	pivotLogPeriod: 1,
-	pivotFeh: 0,
-	covariance: {
-		axes: ['zero_point', 'slope', 'metallicity_term'],
-		matrix: [
-			[0.028 ** 2, 0.0004, 0.0002],
-			[0.0004, 0.095 ** 2, -0.0003],
-			[0.0002, -0.0003, 0.05 ** 2]
-		]
-	},
-	intrinsicScatter: 0.21,
-	validity: { logPeriodMin: 0.4, logPeriodMax: 1.8, fehMin: -0.6, fehMax: 0.4 },
-	extinctionLaw: 'ccm89',
-	rV: 3.1
-};
+const relation = INVENTED_V_BAND;
 
-/** The budget keys as budget-core freezes them (engine 2.0.0): effect = ∂θ/∂term × error. */
+/** The budget keys as engine 2.0.0 freezes them: effect = ∂θ/∂term × error. */
 const frozenBudgetKeys = {
 	systematics: {
 		terms: [
