@@ -1,4 +1,5 @@
 import { describe, expect, test } from 'vitest';
+import { barycentricCorrection } from '../../src/lib/calibration/velocity';
 import { estimateHubble, HubbleRequestSchema } from '../../src/lib/server/api/hubble';
 
 const C = 299_792.458; // km/s, SI exact
@@ -127,6 +128,28 @@ describe('POST /api/v1/hubble semantics', () => {
 		expect(topo.z_measured).toBeCloseTo(0.005, 12);
 		expect(topo.z).toBeCloseTo(1.005 * (1 - 25 / C) - 1, 12);
 		expect(topo.barycentric_correction_km_s).toBe(-25);
+		// Or computed from the site and the time (checked against astropy in velocity.test.ts).
+		const site = { latitude_deg: -24.6272, longitude_deg: -70.4045, height_m: 2635 };
+		const computed = estimateHubble(
+			request({
+				...base,
+				velocity_frame: 'topocentric',
+				observatory: site,
+				observed_at: '2016-03-10T03:00:00Z',
+				ra_deg: 193.44,
+				dec_deg: -6.62
+			})
+		);
+		const bc = barycentricCorrection(
+			{ raDeg: 193.44, decDeg: -6.62 },
+			{ latitudeDeg: -24.6272, longitudeDeg: -70.4045, heightM: 2635 },
+			new Date('2016-03-10T03:00:00Z')
+		);
+		expect(computed.barycentric_correction_km_s).toBe(bc);
+		expect(computed.velocity_km_s).toBeCloseTo(1500 + bc + computed.cmb_correction_km_s!, 9);
+		expect(paths({ ...base, velocity_frame: 'topocentric', observatory: site, ra_deg: 1, dec_deg: 1 })).toContain(
+			'observed_at'
+		);
 	});
 
 	test('the CMB correction acts on z before the q0 term: v = c·z′[1 + ½(1 − q0)z′], 1 + z′ = (1 + z)(1 + v_dipole·cos θ/c)', () => {

@@ -9,7 +9,8 @@ import {
 	peculiarVelocityCaution,
 	recessionVelocity,
 	redshiftFromLine,
-	shiftRedshift
+	shiftRedshift,
+	barycentricCorrection
 } from './velocity';
 import { ASTROPY_MISSING_REASON, astropyVersion, hasAstropy, runPython } from '../../../tests/support/astropy';
 
@@ -171,4 +172,62 @@ print(json.dumps([[float(l), float(b)] for l, b in zip(c.l.deg, c.b.deg)]))`,
 		expect(shifted.error).toBeCloseTo(1e-5 * (1 + 300 / SPEED_OF_LIGHT_KM_S), 18);
 		expect(shiftRedshift({ value: 0.02, error: 0 }, 0).value).toBeCloseTo(0.02, 15);
 	});
+});
+
+describe('barycentric correction against astropy, offline', () => {
+	test.skipIf(!hasAstropy())(
+		`agrees with astropy ${astropyVersion() ?? ''} SkyCoord.radial_velocity_correction('barycentric') to 0.03 km/s (IERS-B bundled, no download)${hasAstropy() ? '' : ` — ${ASTROPY_MISSING_REASON}`}`,
+		() => {
+			const started = performance.now();
+			// Sites as coordinates (rounded, from memory): Paranal, Mauna Kea, La Palma; times inside the bundled IERS-B range.
+			const cases = [
+				{
+					site: { latitudeDeg: -24.6272, longitudeDeg: -70.4045, heightM: 2635 },
+					utc: '2016-03-10T03:00:00Z',
+					ra: 193.44,
+					dec: -6.62
+				},
+				{
+					site: { latitudeDeg: 19.8207, longitudeDeg: -155.4681, heightM: 4205 },
+					utc: '2017-08-17T06:30:00Z',
+					ra: 197.45,
+					dec: -23.38
+				},
+				{
+					site: { latitudeDeg: 28.7606, longitudeDeg: -17.8816, heightM: 2396 },
+					utc: '2018-12-01T22:00:00Z',
+					ra: 10.68,
+					dec: 41.27
+				},
+				{
+					site: { latitudeDeg: -24.6272, longitudeDeg: -70.4045, heightM: 2635 },
+					utc: '2019-06-21T00:00:00Z',
+					ra: 270.0,
+					dec: -30.0
+				}
+			];
+			const astropy = runPython<number[]>(
+				`from astropy.utils import iers
+iers.conf.auto_download = False
+from astropy.coordinates import SkyCoord, EarthLocation
+from astropy.time import Time
+import astropy.units as u
+out = []
+for c in data:
+    loc = EarthLocation.from_geodetic(lon=c['site']['longitudeDeg']*u.deg, lat=c['site']['latitudeDeg']*u.deg, height=c['site']['heightM']*u.m)
+    sc = SkyCoord(ra=c['ra']*u.deg, dec=c['dec']*u.deg, frame='icrs')
+    out.append(float(sc.radial_velocity_correction('barycentric', obstime=Time(c['utc'], scale='utc'), location=loc).to(u.km/u.s).value))
+print(json.dumps(out))`,
+				cases
+			);
+			cases.forEach((c, i) => {
+				const ours = barycentricCorrection({ raDeg: c.ra, decDeg: c.dec }, c.site, new Date(c.utc));
+				console.info(`${c.utc}: ours ${ours.toFixed(4)} km/s, astropy ${astropy[i].toFixed(4)} km/s`);
+				expect(Math.abs(ours - astropy[i])).toBeLessThan(0.03);
+			});
+			expect(Math.max(...astropy.map(Math.abs))).toBeGreaterThan(5);
+			console.info(`barycentric check: ${(performance.now() - started).toFixed(0)} ms`);
+		},
+		60_000
+	);
 });

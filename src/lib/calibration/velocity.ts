@@ -278,3 +278,84 @@ export function singleGalaxyCautions(fromLine: boolean): CalibrationWarning[] {
 	}
 	return cautions;
 }
+
+export interface ObservingSite {
+	/** Geodetic latitude (deg), east longitude (deg) and height above the WGS84 ellipsoid (m). */
+	latitudeDeg: number;
+	longitudeDeg: number;
+	heightM: number;
+}
+
+const AU_KM = 149_597_870.7;
+const DAY_S = 86_400;
+const J2000_JD = 2_451_545.0;
+const EARTH_ROTATION_RAD_S = 7.292115e-5;
+const WGS84_A_M = 6_378_137;
+const WGS84_F = 1 / 298.257223563;
+
+/** Julian date of a UTC instant (UTC taken for UT and TT alike: a minute moves nothing here by more than 1 m/s). */
+function julianDate(date: Date): number {
+	return date.getTime() / (DAY_S * 1000) + 2_440_587.5;
+}
+
+/** Geocentric Sun, ecliptic of J2000 (AU): Meeus, Astronomical Algorithms, ch. 25 low-accuracy series (~0.01°). */
+function sunGeocentricJ2000(jd: number): [number, number, number] {
+	const t = (jd - J2000_JD) / 36_525;
+	const deg = Math.PI / 180;
+	const l0 = 280.46646 + 36_000.76983 * t + 0.0003032 * t * t;
+	const m = 357.52911 + 35_999.05029 * t - 0.0001537 * t * t;
+	const e = 0.016708634 - 0.000042037 * t - 0.0000001267 * t * t;
+	const c =
+		(1.914602 - 0.004817 * t - 0.000014 * t * t) * Math.sin(m * deg) +
+		(0.019993 - 0.000101 * t) * Math.sin(2 * m * deg) +
+		0.000289 * Math.sin(3 * m * deg);
+	const nu = (m + c) * deg;
+	const r = (1.000001018 * (1 - e * e)) / (1 + e * Math.cos(nu));
+	// Longitude of date → mean equinox of J2000 by the general precession in longitude, 1.396971°/century.
+	const lambda = (l0 + c - 1.396971 * t) * deg;
+	const obliquity = 23.4392911 * deg;
+	const x = r * Math.cos(lambda);
+	const y = r * Math.sin(lambda);
+	return [x, y * Math.cos(obliquity), y * Math.sin(obliquity)];
+}
+
+/**
+ * Barycentric correction (km/s) of a topocentric radial velocity towards (α, δ) (ICRS/J2000) seen from
+ * a site at a UTC instant: the observer's velocity projected on the line of sight, v_obs·n̂, from the
+ * Earth's orbital velocity (Meeus ch. 25 Sun, differentiated; the Sun's own motion about the barycentre,
+ * ≲ 0.013 km/s, and the Earth's about the Earth–Moon barycentre, ≲ 0.013 km/s, are left out) and its
+ * rotation ω·(N + h)·cos φ·cos δ·sin(α − LST) with GMST from IAU 1982 (Meeus 12.4). Good to a few
+ * hundredths of a km/s: ample beside a line's measured error and σ_pec.
+ */
+export function barycentricCorrection(
+	target: { raDeg: number; decDeg: number },
+	site: ObservingSite,
+	utc: Date
+): number {
+	const { raDeg, decDeg } = target;
+	const { latitudeDeg, longitudeDeg, heightM } = site;
+	if (!(Math.abs(decDeg) <= 90) || !Number.isFinite(raDeg)) fail('dec_deg', 'must be a finite position');
+	if (!(Math.abs(latitudeDeg) <= 90) || !Number.isFinite(longitudeDeg) || !Number.isFinite(heightM)) {
+		fail('observatory', 'needs a latitude in [−90°, 90°], a longitude and a height');
+	}
+	if (Number.isNaN(utc.getTime())) fail('observed_at', 'must be a valid UTC time');
+	const jd = julianDate(utc);
+	const step = 0.01;
+	const ahead = sunGeocentricJ2000(jd + step);
+	const behind = sunGeocentricJ2000(jd - step);
+	// The Earth moves opposite to the geocentric Sun.
+	const orbit = ahead.map((value, i) => (-(value - behind[i]) / (2 * step)) * (AU_KM / DAY_S));
+	const ra = raDeg * DEG;
+	const dec = decDeg * DEG;
+	const n = [Math.cos(dec) * Math.cos(ra), Math.cos(dec) * Math.sin(ra), Math.sin(dec)];
+	const orbital = orbit[0] * n[0] + orbit[1] * n[1] + orbit[2] * n[2];
+	const t = (jd - J2000_JD) / 36_525;
+	const gmstDeg = 280.46061837 + 360.98564736629 * (jd - J2000_JD) + 0.000387933 * t * t - (t * t * t) / 38_710_000;
+	const lst = (gmstDeg + longitudeDeg) * DEG;
+	const phi = latitudeDeg * DEG;
+	const e2 = WGS84_F * (2 - WGS84_F);
+	const primeVertical = WGS84_A_M / Math.sqrt(1 - e2 * Math.sin(phi) ** 2);
+	const axisDistanceKm = ((primeVertical + heightM) * Math.cos(phi)) / 1000;
+	const rotation = EARTH_ROTATION_RAD_S * axisDistanceKm * Math.cos(dec) * Math.sin(ra - lst);
+	return orbital + rotation;
+}

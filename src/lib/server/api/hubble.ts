@@ -1,5 +1,6 @@
 import { z } from 'zod';
 import {
+	barycentricCorrection,
 	CalibrationInputError,
 	cmbDipoleProjection,
 	heliocentricToCmb,
@@ -38,7 +39,22 @@ export const HubbleRequestSchema = registerApiSchema(
 			barycentric_correction_km_s: z
 				.number()
 				.optional()
-				.describe("Barycentric correction (km/s) of a topocentric measurement, added as 1 + z' = (1 + z)(1 + v/c)."),
+				.describe(
+					"Barycentric correction (km/s) of a topocentric measurement, added as 1 + z' = (1 + z)(1 + v/c); or give observatory, observed_at, ra_deg and dec_deg to have it computed."
+				),
+			observatory: z
+				.object({
+					latitude_deg: z.number().min(-90).max(90),
+					longitude_deg: z.number().min(-180).max(360).describe('East longitude.'),
+					height_m: z.number().min(-500).max(10_000)
+				})
+				.strict()
+				.optional()
+				.describe('Geodetic (WGS84) position of the telescope, for a computed barycentric correction.'),
+			observed_at: z.iso
+				.datetime({ offset: false, local: false })
+				.optional()
+				.describe('UTC time of the observation, for a computed barycentric correction.'),
 			velocity_km_s: positive.optional(),
 			velocity_km_s_err: nonNegative.optional(),
 			observed_wavelength_nm: positive.optional(),
@@ -87,14 +103,28 @@ export const HubbleRequestSchema = registerApiSchema(
 					message: 'give either distance_mpc_err, or both distance_mpc_err_stat and distance_mpc_err_sys'
 				});
 			}
-			if ((body.velocity_frame === 'topocentric') !== (body.barycentric_correction_km_s !== undefined)) {
+			const computable = body.observatory !== undefined || body.observed_at !== undefined;
+			const given = body.barycentric_correction_km_s !== undefined;
+			if (body.velocity_frame === 'topocentric') {
+				if (given === computable) {
+					ctx.addIssue({
+						code: 'custom',
+						path: ['barycentric_correction_km_s'],
+						message:
+							'a topocentric measurement needs its barycentric correction: give barycentric_correction_km_s, or observatory, observed_at, ra_deg and dec_deg'
+					});
+				} else if (computable && (!body.observatory || !body.observed_at || body.ra_deg === undefined)) {
+					ctx.addIssue({
+						code: 'custom',
+						path: [!body.observatory ? 'observatory' : !body.observed_at ? 'observed_at' : 'ra_deg'],
+						message: 'a computed barycentric correction needs observatory, observed_at, ra_deg and dec_deg'
+					});
+				}
+			} else if (given || computable) {
 				ctx.addIssue({
 					code: 'custom',
-					path: ['barycentric_correction_km_s'],
-					message:
-						body.velocity_frame === 'topocentric'
-							? 'a topocentric measurement needs its barycentric correction (km/s)'
-							: `a barycentric correction applies only to a topocentric measurement, not a ${body.velocity_frame} one`
+					path: [given ? 'barycentric_correction_km_s' : 'observatory'],
+					message: `a barycentric correction applies only to a topocentric measurement, not a ${body.velocity_frame} one`
 				});
 			}
 			if (body.velocity_frame === 'cmb' && body.ra_deg !== undefined) {
@@ -166,9 +196,21 @@ export type HubbleResponse = z.infer<typeof HubbleResponseSchema>;
 
 export function estimateHubble(body: HubbleRequest): HubbleResponse {
 	try {
-		const barycentric = body.velocity_frame === 'topocentric' ? (body.barycentric_correction_km_s ?? 0) : null;
 		const position =
 			body.ra_deg !== undefined && body.dec_deg !== undefined ? { raDeg: body.ra_deg, decDeg: body.dec_deg } : null;
+		const barycentric =
+			body.velocity_frame !== 'topocentric'
+				? null
+				: (body.barycentric_correction_km_s ??
+					barycentricCorrection(
+						position!,
+						{
+							latitudeDeg: body.observatory!.latitude_deg,
+							longitudeDeg: body.observatory!.longitude_deg,
+							heightM: body.observatory!.height_m
+						},
+						new Date(body.observed_at!)
+					));
 		const correction = position === null ? null : cmbDipoleProjection(position);
 		let measured: Measured | null = null;
 		let z: Measured | null = null;
