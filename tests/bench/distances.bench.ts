@@ -68,9 +68,20 @@ function endpointWork(body: string): string {
 			validity: { log_period_min: 0.4, log_period_max: 1.8, feh_min: -0.6, feh_max: 0.4 },
 			coefficients: { zero_point: -3.944, slope: -2.67, metallicity_term: -0.2 },
 			pivot_log_period: 1,
-			pivot_feh: 0
+			pivot_feh: 0,
+			wesenheit_ratio: null,
+			engine_version: '1.0.0',
+			systematics_recorded: false
 		},
-		settings: { extinction_law: 'ccm89', r_v: 3.1, clip_sigma: 3 },
+		settings: {
+			extinction_law: 'ccm89',
+			r_v: 3.1,
+			clip_sigma: 3,
+			foreground_ebv_err: null,
+			host_metallicity: null,
+			adopted_slope_err: null,
+			crowding_correction: null
+		},
 		ids: columns.ids,
 		batch: hostDistanceBatch(relation, columns),
 		warnings: []

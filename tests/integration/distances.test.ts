@@ -261,3 +261,187 @@ describe.skipIf(!hasReferenceData('ogle-magellanic-cepheids'))(`OGLE-IV LMC Ceph
 		expect(Math.abs(response.combined.mu0 - 18.477)).toBeLessThan(0.02);
 	});
 });
+
+/** A relation of realistic size in W_VI (invented numbers), for the photometric-system and budget checks. */
+const wBand: Relation = {
+	bandId: 'W_VI',
+	population: 'classical_fundamental',
+	magnitudeSystem: 'Vega',
+	coefficients: { zeroPoint: -5.9, slope: -3.3, metallicityTerm: null },
+	pivotLogPeriod: 1,
+	pivotFeh: 0,
+	covariance: {
+		axes: ['zero_point', 'slope'],
+		matrix: [
+			[0.004 ** 2, 0.00001],
+			[0.00001, 0.012 ** 2]
+		]
+	},
+	intrinsicScatter: 0.08,
+	validity: { logPeriodMin: 0.3, logPeriodMax: 2, fehMin: null, fehMax: null },
+	extinctionLaw: null,
+	rV: null
+};
+const wStars = Array.from({ length: 40 }, (_, i) => ({
+	id: `w-${i} (invented)`,
+	period_days: 4 + i * 0.9,
+	mean_mag: 29.4 - 5.9 - 3.3 * (Math.log10(4 + i * 0.9) - 1) + (((i * 37) % 11) - 5) * 0.01,
+	mean_mag_err: 0.05
+}));
+
+describe('photometric systems, error budgets and intervals through the distance service', () => {
+	const started = performance.now();
+	afterAll(() => console.info(`distance budget checks: ${(performance.now() - started).toFixed(0)} ms`));
+
+	test('a Vega star sent to an AB relation in F160W is refused with the star and field named; an AB star is accepted', async () => {
+		// F160W's AB and Vega zero points differ by about 1.25 mag (PRODUCT.md, from memory): a silent mix is a 1.25 mag error.
+		const { ref } = await pinPublishedRelation(orm, {
+			slug: unique('f160w-ab'),
+			title: 'F160W AB (test)',
+			relation: { ...vBand, bandId: 'F160W', magnitudeSystem: 'AB', extinctionLaw: 'fitzpatrick99' }
+		});
+		const star = { id: 'h-1', period_days: 20, mean_mag: 25.3, mean_mag_err: 0.06 };
+		const refused = await refusal(() =>
+			computeDistances(
+				em(),
+				null,
+				readDistanceEnvelope({ relation: ref, stars: [{ ...star, magnitude_system: 'Vega' }] })
+			)
+		);
+		expect(refused.status).toBe(422);
+		expect(refused.errors[0].path).toBe('stars/0/magnitude_system');
+		expect(refused.errors[0].message).toContain('is Vega but');
+		expect(refused.errors[0].message).toContain('AB');
+		const accepted = toDistanceResponse(
+			await computeDistances(
+				em(),
+				null,
+				readDistanceEnvelope({ relation: ref, stars: [{ ...star, magnitude_system: 'AB' }] })
+			)
+		);
+		expect(accepted.warnings.map((w) => w.code)).not.toContain('magnitude_system_assumed');
+		const unsaid = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: [star] }))
+		);
+		expect(unsaid.warnings.find((w) => w.code === 'magnitude_system_assumed')?.message).toContain('taken to be AB');
+	});
+
+	test('a Wesenheit R other than the relation’s is refused; an absent one is assumed with a warning; R on a single band is refused', async () => {
+		const { ref } = await pinPublishedRelation(orm, { slug: unique('w-vi-r'), title: 'W_VI (test)', relation: wBand });
+		const withR = (r: number | undefined) =>
+			wStars.map((s, i) => (i === 3 && r !== undefined ? { ...s, wesenheit_ratio: r } : s));
+		const refused = await refusal(() =>
+			computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: withR(1.3) }))
+		);
+		expect(refused.status).toBe(422);
+		expect(refused.errors.map((e) => e.path)).toEqual(['stars/3/wesenheit_ratio']);
+		expect(refused.errors[0].message).toContain('R = 1.55');
+		const same = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: ref, stars: withR(1.55) }))
+		);
+		expect(same.warnings.find((w) => w.code === 'wesenheit_ratio_assumed')?.details?.count).toBe(39);
+		expect(same.relation.wesenheit_ratio).toBe(1.55);
+		const single = await refusal(() => run({ stars: [{ ...workedStar, wesenheit_ratio: 1.55 }] }));
+		expect(single.errors[0].path).toBe('stars/0/wesenheit_ratio');
+		expect(single.errors[0].message).toContain('single band');
+	});
+
+	test('a version frozen before systematics were recorded says so; one frozen to the engine-2 contract adds its anchor once', async () => {
+		const old = await pinPublishedRelation(orm, {
+			slug: unique('w-vi-old'),
+			title: 'W_VI 1.x (test)',
+			relation: wBand
+		});
+		const before = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: old.ref, stars: wStars }))
+		);
+		expect(before.relation.systematics_recorded).toBe(false);
+		expect(before.warnings.map((w) => w.code)).toContain('systematics_not_recorded');
+		expect(before.combined.error_budget.map((t) => t.id)).toEqual(['relation_coefficients']);
+
+		// The content keys as the engine-2 freezing writes them (frozen-content.ts contract); the LMC anchor
+		// μ = 18.477 ± 0.026 (Pietrzyński et al. 2019, from memory) enters the zero point with ∂a/∂μ = −1.
+		const frozen = await pinPublishedRelation(orm, {
+			slug: unique('w-vi-v2'),
+			title: 'W_VI 2.0 (test)',
+			relation: wBand,
+			laterEngineContent: {
+				engineVersion: '2.0.0',
+				keys: {
+					systematics: {
+						terms: [
+							{
+								id: 'anchor_distance',
+								label: 'LMC μ = 18.477 ± 0.026',
+								value: 18.477,
+								error: 0.026,
+								effect: { zero_point: -0.026, slope: 0, metallicity_term: null }
+							}
+						]
+					},
+					fit_quality: {
+						reduced_chi_square: 7.52,
+						degrees_of_freedom: 60,
+						covariance_scaled: true,
+						errors_too_small: true
+					},
+					wesenheit_ratio: 1.55
+				}
+			}
+		});
+		const after = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: frozen.ref, stars: wStars }))
+		);
+		expect(after.relation.systematics_recorded).toBe(true);
+		expect(after.warnings.map((w) => w.code)).not.toContain('systematics_not_recorded');
+		expect(after.warnings.find((w) => w.code === 'relation_errors_too_small')?.message).toContain('7.52');
+		const dx = after.combined.mean_log_period - 1;
+		const gSg = 0.004 ** 2 + 2 * dx * 0.00001 + dx * dx * 0.012 ** 2;
+		expect(Math.abs(after.combined.mu0_err_sys - Math.sqrt(0.026 ** 2 + gSg))).toBeLessThan(1e-6);
+		expect(after.combined.error_budget.map((t) => t.id)).toEqual(['relation_coefficients', 'anchor_distance']);
+		// Same stars, same statistics: only the systematic grew, from ~0.005 to at least 0.026.
+		expect(after.combined.mu0_err_stat).toBe(before.combined.mu0_err_stat);
+		expect(before.combined.mu0_err_sys).toBeLessThan(0.01);
+		expect(after.combined.mu0_err_sys).toBeGreaterThan(0.026);
+	});
+
+	test('host-wide inputs become named budget terms; a bad one is refused naming its field; distances come as intervals', async () => {
+		const computation = await run({
+			stars: [workedStar, { ...workedStar, id: 'cand-2', period_days: 31, feh: null, feh_err: null }],
+			foreground_ebv_err: 0.03,
+			host_metallicity: { value: -0.25, error: 0.1, scale: 'o_h' },
+			adopted_slope_err: 0.04,
+			crowding_correction: { value: 0.02, error: 0.015 },
+			clip_sigma: null
+		} as never);
+		const response = toDistanceResponse(computation);
+		const c = response.combined;
+		expect(c.error_budget.map((t) => t.id)).toEqual([
+			'relation_coefficients',
+			'foreground_reddening',
+			'host_metallicity',
+			'adopted_slope',
+			'crowding'
+		]);
+		const term = (id: string) => c.error_budget.find((t) => t.id === id)!.value;
+		expect(term('foreground_reddening')).toBeCloseTo(bandExtinctionPerEbv('ccm89', 'V', 3.1) * 0.03, 12);
+		expect(term('crowding')).toBe(0.015);
+		expect(c.n_assumed_metallicity).toBe(1);
+		expect(Math.abs(c.mu0_err_sys - Math.hypot(...c.error_budget.map((t) => t.value)))).toBeLessThan(1e-15);
+		expect(response.warnings.map((w) => w.code)).toEqual(
+			expect.arrayContaining(['metallicity_scale_assumed', 'metallicity_assumed'])
+		);
+		// 16th/84th percentiles of 10^(μ/5+1) for Gaussian μ are the transforms of μ ∓ σ (monotonic map).
+		expect(c.distance_mpc_p16).toBeCloseTo(10 ** ((c.mu0 - c.mu0_err) / 5 + 1) / 1e6, 12);
+		expect(c.distance_mpc_p84).toBeCloseTo(10 ** ((c.mu0 + c.mu0_err) / 5 + 1) / 1e6, 12);
+		expect(c.distance_mpc_p84 - c.distance_mpc).toBeGreaterThan(c.distance_mpc - c.distance_mpc_p16);
+		const star = response.results[0];
+		expect(star.distance_mpc_p16).toBeCloseTo(10 ** ((star.mu0 - star.mu0_err) / 5 + 1) / 1e6, 12);
+		expect(response.distance_convention).toContain('median');
+		const bad = await refusal(async () =>
+			readDistanceEnvelope({ relation: vRef, stars: [workedStar], host_metallicity: { value: 0, error: -1 } })
+		);
+		expect(bad.status).toBe(422);
+		expect(bad.errors.map((e) => e.path)).toContain('host_metallicity/error');
+	});
+});

@@ -1,6 +1,7 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
 import {
 	ENGINE_VERSION,
+	digestOf,
 	sealRelationVersion,
 	type Relation as EngineRelation,
 	type RelationVersionContent
@@ -23,6 +24,11 @@ export async function pinPublishedRelation(
 		visibility?: 'public' | 'group';
 		embargoUntil?: Date | null;
 		groupSlug?: string;
+		/**
+		 * Keys frozen by later engines (e.g. `systematics`, `fit_quality`, `wesenheit_ratio` of engine 2.0.0),
+		 * merged into the content; the digest is then taken over the merged content as it stands.
+		 */
+		laterEngineContent?: { engineVersion: string; keys: Record<string, unknown> };
 	}
 ): Promise<{ ref: string; digest: string; groupSlug: string }> {
 	const em = orm.em.fork();
@@ -95,7 +101,13 @@ export async function pinPublishedRelation(
 		approved_by: [{ name: 'Test pinning', orcid: null }],
 		approved_at: '2026-01-01T00:00:00Z'
 	};
-	const sealed = sealRelationVersion(content);
+	const later = options.laterEngineContent;
+	const sealed = later
+		? (() => {
+				const merged = { ...content, engine_version: later.engineVersion, ...later.keys };
+				return { ...merged, digest: digestOf(merged) };
+			})()
+		: sealRelationVersion(content);
 	const id = crypto.randomUUID();
 	em.create(RelationVersion, {
 		id,

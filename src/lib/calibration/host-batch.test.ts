@@ -2,30 +2,11 @@ import { describe, expect, test } from 'vitest';
 import { applyRelation, type StarPhotometry } from './apply';
 import { combineHostDistance } from './host-distance';
 import { hostDistanceBatch, type HostBatchInput } from './host-batch';
-import type { Relation } from './types';
 import { hasReferenceData, missingReason, readReferenceFile } from '../../../tests/support/reference-data';
+import type { Relation } from './types';
+import { INVENTED_V_BAND } from '../../../tests/fixtures/invented-v-band';
 
-/** Invented V-band relation with a metallicity term and a full covariance (the shape of apply.test.ts's). */
-const vBand: Relation = {
-	bandId: 'V',
-	population: 'classical_fundamental',
-	magnitudeSystem: 'Vega',
-	coefficients: { zeroPoint: -3.944, slope: -2.67, metallicityTerm: -0.2 },
-	pivotLogPeriod: 1,
-	pivotFeh: 0,
-	covariance: {
-		axes: ['zero_point', 'slope', 'metallicity_term'],
-		matrix: [
-			[0.028 ** 2, 0.0004, 0.0002],
-			[0.0004, 0.095 ** 2, -0.0003],
-			[0.0002, -0.0003, 0.05 ** 2]
-		]
-	},
-	intrinsicScatter: 0.21,
-	validity: { logPeriodMin: 0.4, logPeriodMax: 1.8, fehMin: -0.6, fehMax: 0.4 },
-	extinctionLaw: 'ccm89',
-	rV: 3.1
-};
+const vBand = INVENTED_V_BAND;
 
 function columnsOf(stars: StarPhotometry[]): HostBatchInput {
 	const column = (pick: (star: StarPhotometry) => number | null | undefined) =>
@@ -60,8 +41,15 @@ describe('the host batch reproduces applyRelation + combineHostDistance', () => 
 	test('per-star M, μ0, distances and warnings, and the clipped combination, to 1e-12 (the engine’s object path)', () => {
 		const stars = inventedHost(300);
 		const reference = applyRelation(vBand, stars).stars;
-		const host = combineHostDistance(vBand, reference);
+		// Stars without [Fe/H] take the pivot; the error of that assumption is the relation's [Fe/H] range
+		// (−0.6 to 0.4) read as uniform, σ = 1/√12 dex, a shared term in both paths.
+		const pivotAssumption = { error: 1 / Math.sqrt(12), conversionError: 0, assumed: 'pivot' as const };
+		const host = combineHostDistance(vBand, reference, { budget: { metallicity: pivotAssumption } });
 		const batch = hostDistanceBatch(vBand, columnsOf(stars));
+		expect(batch.combined.errorBudget.map((term) => term.id)).toEqual(['relation_coefficients', 'host_metallicity']);
+		expect(batch.combined.assumedMetallicityCount).toBe(host.assumedMetallicityCount);
+		expect(batch.combined.assumedMetallicityCount).toBeGreaterThan(20);
+		expect(batch.warnings.map((w) => w.code)).toContain('metallicity_assumed');
 		reference.forEach((star, i) => {
 			expect(Math.abs(batch.absMag[i] - star.absoluteMagnitude.value)).toBeLessThan(1e-12);
 			expect(Math.abs(batch.absMagErr[i] - star.absoluteMagnitude.error)).toBeLessThan(1e-12);

@@ -2,31 +2,24 @@
  * A host galaxy's distance modulus from its Cepheids.
  *
  *   w_i = 1 / (σ_phot,i² + σ_red,i² + σ_int² + (γ σ_[Fe/H],i)²),   μ_host = Σ w_i μ0,i / Σ w_i,
- *   σ_stat = 1/√Σw_i,   σ_sys² = gᵀΣg at the host's mean log P (and mean [Fe/H]) + Σ σ_anchor,k²,
- *   σ_total² = σ_stat² + σ_sys²
- * (inverse-variance weighted mean; the relation's coefficient error and anchor systematics are the
- * same for every star of the host, so they are added once and never averaged down).
+ *   σ_stat = 1/√Σw_i,   σ_sys² = Σ_k t_k²,   σ_total² = σ_stat² + σ_sys²
+ * (inverse-variance weighted mean). The terms t_k are the errors every star of the host shares, each
+ * added once and never averaged down (host-error-budget.ts): the relation's coefficient covariance
+ * gᵀΣg at the host's mean log P and [Fe/H], the relation's frozen systematics g·effect, and the
+ * host-wide inputs (foreground reddening, host metallicity, adopted slope, crowding).
  */
 import type { StarDistance } from './apply';
-import { coefficientVariance } from './apply';
-import { measuredDistanceFromModulus } from './units';
+import { hostErrorBudget, type ErrorBudgetTerm, type HostBudgetInputs } from './host-error-budget';
+import { distanceIntervalFromModulus, measuredDistanceFromModulus, type DistanceInterval } from './units';
 import { CalibrationInputError, type CalibrationWarning, type InputIssue, type Measured, type Relation } from './types';
-
-/** A systematic shared by every star of the host, e.g. the anchor distance or the parallax zero point. */
-export interface SystematicTerm {
-	/** Stable id, e.g. `anchor_distance`, `parallax_zero_point`, `extinction_law`. */
-	name: string;
-	/** 1σ in magnitudes of distance modulus. */
-	error: number;
-}
 
 export interface HostDistanceOptions {
 	/** Reject stars with |standardized residual| above this; null disables clipping. Default 3. */
 	clipSigma?: number | null;
 	/** Default 10. */
 	maxIterations?: number;
-	/** Anchor and other shared systematics, each added once in quadrature. */
-	systematics?: readonly SystematicTerm[];
+	/** Shared errors of the relation and the host, each added once in quadrature. */
+	budget?: HostBudgetInputs;
 	/** Fewest stars to keep; clipping stops rather than go below it. Default 2. */
 	minStars?: number;
 }
@@ -40,14 +33,20 @@ export interface HostRejectedStar {
 
 export interface HostDistance {
 	mu0: { value: number; statistical: number; systematic: number; total: number };
+	/** d ± σ_d (first order) from μ0 ± σ_total; the value is the median of 10^(μ/5+1) for Gaussian μ. */
 	distanceMpc: Measured;
+	/** 16th and 84th percentiles of 10^(μ/5+1) for μ0 ± σ_total. */
+	distanceIntervalMpc: DistanceInterval;
 	nUsed: number;
 	used: string[];
 	rejected: HostRejectedStar[];
 	/** Weighted mean log P of the stars used; the coefficient term is evaluated there. */
 	meanLogPeriod: number;
 	meanFeh: number | null;
-	systematicTerms: SystematicTerm[];
+	/** The systematic terms, each once, in mag of μ0; σ_sys is their quadrature sum. */
+	errorBudget: ErrorBudgetTerm[];
+	/** Used stars whose [Fe/H] was assumed (the host value, or the relation's pivot). */
+	assumedMetallicityCount: number;
 	/** Σ w_i (μ0,i − μ_host)² / (n − 1), a check of the per-star errors. */
 	reducedChiSquare: number | null;
 	iterations: number;
@@ -69,6 +68,8 @@ export interface HostColumns {
 	logPeriod: Float64Array;
 	/** [Fe/H] each star was taken at; NaN where it has none. */
 	feh: Float64Array;
+	/** 1 where the star's [Fe/H] was assumed rather than measured; absent: none. */
+	assumedFeh?: Uint8Array;
 }
 
 export interface HostCombination extends Omit<HostDistance, 'used'> {
@@ -96,7 +97,7 @@ export function combineHostColumns(
 	columns: HostColumns,
 	options: HostDistanceOptions = {}
 ): HostCombination {
-	const { ids, mu0: mu, variance, logPeriod, feh } = columns;
+	const { ids, mu0: mu, variance, logPeriod, feh, assumedFeh } = columns;
 	const n = mu.length;
 	const clipSigma = options.clipSigma === undefined ? 3 : options.clipSigma;
 	const maxIterations = options.maxIterations ?? 10;
@@ -150,6 +151,8 @@ export function combineHostColumns(
 	let sumWFehWeight = 0;
 	let chi2 = 0;
 	let nUsed = 0;
+	let sumWAssumed = 0;
+	let assumedMetallicityCount = 0;
 	const rejected: HostRejectedStar[] = [];
 	const rejectedMask = new Uint8Array(n);
 	for (let i = 0; i < n; i++) {
@@ -162,6 +165,10 @@ export function combineHostColumns(
 		nUsed++;
 		sumW += weight[i];
 		sumWLogP += weight[i] * logPeriod[i];
+		if (assumedFeh?.[i]) {
+			sumWAssumed += weight[i];
+			assumedMetallicityCount++;
+		}
 		if (feh[i] === feh[i]) {
 			sumWFeh += weight[i] * feh[i];
 			sumWFehWeight += weight[i];
@@ -171,29 +178,25 @@ export function combineHostColumns(
 	const meanLogPeriod = sumWLogP / sumW;
 	const hasGamma = relation.coefficients.metallicityTerm !== null;
 	const meanFeh = sumWFehWeight > 0 ? sumWFeh / sumWFehWeight : hasGamma ? relation.pivotFeh : null;
-	const coefficientTerm = Math.sqrt(
-		coefficientVariance(
-			relation,
-			meanLogPeriod - relation.pivotLogPeriod,
-			hasGamma && meanFeh !== null ? meanFeh - relation.pivotFeh : 0
-		)
-	);
-	const systematicTerms: SystematicTerm[] = [
-		{ name: 'relation_coefficients', error: coefficientTerm },
-		...(options.systematics ?? [])
-	];
+	const errorBudget = hostErrorBudget(relation, options.budget ?? {}, {
+		meanLogPeriod,
+		meanFeh,
+		assumedMetallicityWeight: sumWAssumed / sumW
+	});
 	const statistical = 1 / Math.sqrt(sumW);
-	const systematic = Math.sqrt(systematicTerms.reduce((sum, term) => sum + term.error ** 2, 0));
+	const systematic = Math.sqrt(errorBudget.reduce((sum, term) => sum + term.value ** 2, 0));
 	const total = Math.hypot(statistical, systematic);
 	return {
 		mu0: { value: mean, statistical, systematic, total },
 		distanceMpc: measuredDistanceFromModulus({ value: mean, error: total }, 'Mpc'),
+		distanceIntervalMpc: distanceIntervalFromModulus(mean, total, 'Mpc'),
 		nUsed,
 		rejected,
 		rejectedMask,
 		meanLogPeriod,
 		meanFeh,
-		systematicTerms,
+		errorBudget,
+		assumedMetallicityCount,
 		reducedChiSquare: nUsed > 1 ? chi2 / (nUsed - 1) : null,
 		iterations,
 		warnings
@@ -212,9 +215,9 @@ export function combineHostDistance(
 			: [{ star: star.id, field: 'mu0', message: 'needs a finite μ0 and a positive random error' }]
 	);
 	if (stars.length === 0) issues.push({ star: null, field: 'stars', message: 'no stars to combine' });
-	for (const term of options.systematics ?? []) {
-		if (!(term.error >= 0) || !Number.isFinite(term.error)) {
-			issues.push({ star: null, field: `systematics.${term.name}`, message: 'error must be finite and ≥ 0' });
+	for (const term of options.budget?.fixed ?? []) {
+		if (!(term.value >= 0) || !Number.isFinite(term.value)) {
+			issues.push({ star: null, field: `budget.${term.id}`, message: 'must be finite and ≥ 0' });
 		}
 	}
 	if (issues.length > 0) throw new CalibrationInputError(issues);
@@ -227,19 +230,24 @@ export function combineHostDistance(
 			mu0: Float64Array.from(stars, (star) => star.mu0.value),
 			variance: Float64Array.from(stars, randomVariance),
 			logPeriod: Float64Array.from(stars, (star) => star.logPeriod),
-			feh: Float64Array.from(stars, (star) => star.feh ?? Number.NaN)
+			feh: Float64Array.from(stars, (star) => star.feh ?? Number.NaN),
+			assumedFeh: Uint8Array.from(stars, (star) =>
+				star.warnings.some((warning) => warning.code === 'metallicity_missing') ? 1 : 0
+			)
 		},
 		options
 	);
 	return {
 		mu0: combined.mu0,
 		distanceMpc: combined.distanceMpc,
+		distanceIntervalMpc: combined.distanceIntervalMpc,
 		nUsed: combined.nUsed,
 		used: ids.filter((_, i) => !combined.rejectedMask[i]),
 		rejected: combined.rejected,
 		meanLogPeriod: combined.meanLogPeriod,
 		meanFeh: combined.meanFeh,
-		systematicTerms: combined.systematicTerms,
+		errorBudget: combined.errorBudget,
+		assumedMetallicityCount: combined.assumedMetallicityCount,
 		reducedChiSquare: combined.reducedChiSquare,
 		iterations: combined.iterations,
 		warnings: combined.warnings

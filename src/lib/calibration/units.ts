@@ -61,3 +61,23 @@ export function measuredModulusFromDistance(distance: Measured, unit: DistanceUn
 export function fluxRatioFromModulus(mu: number): number {
 	return 10 ** (0.4 * mu);
 }
+
+/** The median and the 16th/84th percentiles of a distance whose modulus is Gaussian. */
+export interface DistanceInterval {
+	median: number;
+	p16: number;
+	p84: number;
+}
+
+/**
+ * For Gaussian μ ~ N(μ0, σ), d = 10^(μ/5+1) is monotonic in μ, so its quantiles are the transforms of
+ * μ's: median 10^(μ0/5+1), 16th/84th percentiles 10^((μ0 ∓ σ)/5+1) (to the 1σ points' 15.87%/84.13%).
+ * The interval is asymmetric, unlike the first-order d ± σ_d of `measuredDistanceFromModulus`.
+ */
+export function distanceIntervalFromModulus(mu: number, sigma: number, unit: DistanceUnit = 'pc'): DistanceInterval {
+	return {
+		median: distanceFromModulus(mu, unit),
+		p16: distanceFromModulus(mu - sigma, unit),
+		p84: distanceFromModulus(mu + sigma, unit)
+	};
+}

@@ -8,8 +8,11 @@ import {
 	hubbleConstant,
 	peculiarVelocityCaution,
 	recessionVelocity,
-	redshiftFromLine
+	redshiftFromLine,
+	shiftRedshift,
+	barycentricCorrection
 } from './velocity';
+import { ASTROPY_MISSING_REASON, astropyVersion, hasAstropy, runPython } from '../../../tests/support/astropy';
 
 /** Smallest angle between two directions on the sphere (deg). */
 function separationDeg(l1: number, b1: number, l2: number, b2: number): number {
@@ -128,4 +131,103 @@ describe('H0 and the peculiar-velocity caution', () => {
 		});
 		expect(noPec.error).toBeLessThan(h0.error / 2);
 	});
+});
+
+describe('frame corrections against astropy', () => {
+	test.skipIf(!hasAstropy())(
+		`ICRS → Galactic (l, b) agrees with astropy ${astropyVersion() ?? ''} SkyCoord(...).galactic to 2e-4° at nine positions${hasAstropy() ? '' : ` — ${ASTROPY_MISSING_REASON}`}`,
+		() => {
+			const started = performance.now();
+			const positions = [
+				[0, 0],
+				[193.4404, -6.6222],
+				[10.6847, 41.269],
+				[83.8221, -5.3911],
+				[266.405, -28.936],
+				[150.1, 2.2],
+				[300, 60],
+				[45, -75],
+				[359.9, 89]
+			];
+			const astropy = runPython<[number, number][]>(
+				`from astropy.coordinates import SkyCoord
+import astropy.units as u
+c = SkyCoord(ra=[p[0] for p in data]*u.deg, dec=[p[1] for p in data]*u.deg, frame='icrs').galactic
+print(json.dumps([[float(l), float(b)] for l, b in zip(c.l.deg, c.b.deg)]))`,
+				positions
+			);
+			positions.forEach(([ra, dec], i) => {
+				const ours = equatorialToGalactic(ra, dec);
+				// FK5 J2000 pole constants vs astropy's ICRS → Galactic: they differ by tens of milliarcseconds.
+				expect(separationDeg(ours.lDeg, ours.bDeg, astropy[i][0], astropy[i][1])).toBeLessThan(2e-4);
+			});
+			console.info(`astropy galactic check: ${(performance.now() - started).toFixed(0)} ms`);
+		},
+		60_000
+	);
+
+	test('a frame velocity composes with z: 1 + z′ = (1 + z)(1 + v/c), and the error scales with it', () => {
+		const shifted = shiftRedshift({ value: 0.01, error: 1e-5 }, 300);
+		expect(shifted.value).toBeCloseTo(1.01 * (1 + 300 / SPEED_OF_LIGHT_KM_S) - 1, 15);
+		expect(shifted.error).toBeCloseTo(1e-5 * (1 + 300 / SPEED_OF_LIGHT_KM_S), 18);
+		expect(shiftRedshift({ value: 0.02, error: 0 }, 0).value).toBeCloseTo(0.02, 15);
+	});
+});
+
+describe('barycentric correction against astropy, offline', () => {
+	test.skipIf(!hasAstropy())(
+		`agrees with astropy ${astropyVersion() ?? ''} SkyCoord.radial_velocity_correction('barycentric') to 0.03 km/s (IERS-B bundled, no download)${hasAstropy() ? '' : ` — ${ASTROPY_MISSING_REASON}`}`,
+		() => {
+			const started = performance.now();
+			// Sites as coordinates (rounded, from memory): Paranal, Mauna Kea, La Palma; times inside the bundled IERS-B range.
+			const cases = [
+				{
+					site: { latitudeDeg: -24.6272, longitudeDeg: -70.4045, heightM: 2635 },
+					utc: '2016-03-10T03:00:00Z',
+					ra: 193.44,
+					dec: -6.62
+				},
+				{
+					site: { latitudeDeg: 19.8207, longitudeDeg: -155.4681, heightM: 4205 },
+					utc: '2017-08-17T06:30:00Z',
+					ra: 197.45,
+					dec: -23.38
+				},
+				{
+					site: { latitudeDeg: 28.7606, longitudeDeg: -17.8816, heightM: 2396 },
+					utc: '2018-12-01T22:00:00Z',
+					ra: 10.68,
+					dec: 41.27
+				},
+				{
+					site: { latitudeDeg: -24.6272, longitudeDeg: -70.4045, heightM: 2635 },
+					utc: '2019-06-21T00:00:00Z',
+					ra: 270.0,
+					dec: -30.0
+				}
+			];
+			const astropy = runPython<number[]>(
+				`from astropy.utils import iers
+iers.conf.auto_download = False
+from astropy.coordinates import SkyCoord, EarthLocation
+from astropy.time import Time
+import astropy.units as u
+out = []
+for c in data:
+    loc = EarthLocation.from_geodetic(lon=c['site']['longitudeDeg']*u.deg, lat=c['site']['latitudeDeg']*u.deg, height=c['site']['heightM']*u.m)
+    sc = SkyCoord(ra=c['ra']*u.deg, dec=c['dec']*u.deg, frame='icrs')
+    out.append(float(sc.radial_velocity_correction('barycentric', obstime=Time(c['utc'], scale='utc'), location=loc).to(u.km/u.s).value))
+print(json.dumps(out))`,
+				cases
+			);
+			cases.forEach((c, i) => {
+				const ours = barycentricCorrection({ raDeg: c.ra, decDeg: c.dec }, c.site, new Date(c.utc));
+				console.info(`${c.utc}: ours ${ours.toFixed(4)} km/s, astropy ${astropy[i].toFixed(4)} km/s`);
+				expect(Math.abs(ours - astropy[i])).toBeLessThan(0.03);
+			});
+			expect(Math.max(...astropy.map(Math.abs))).toBeGreaterThan(5);
+			console.info(`barycentric check: ${(performance.now() - started).toFixed(0)} ms`);
+		},
+		60_000
+	);
 });

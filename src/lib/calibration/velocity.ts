@@ -163,14 +163,29 @@ export function heliocentricToCmb(
 export interface HubbleConstantInput {
 	/** Recession velocity (km/s), ideally in the CMB frame. */
 	velocity: Measured;
+	/** The distance with its total 1σ error. */
 	distanceMpc: Measured;
+	/** The distance's statistical and systematic parts (Mpc), when known; their quadrature sum is the total. */
+	distanceSplitMpc?: { statistical: number; systematic: number };
 	/** σ_pec (km/s); default 250 (common practice). */
 	peculiarVelocityKmS?: number;
 }
 
 export interface HubbleConstantEstimate extends Measured {
-	/** Fractional contributions to σ_H0/H0, each a 1σ term added in quadrature. */
-	budget: { distance: number; velocity: number; peculiarVelocity: number };
+	/**
+	 * Fractional contributions to σ_H0/H0, each a 1σ term added in quadrature. `distance` is the
+	 * quadrature sum of `distanceStatistical` and `distanceSystematic` when the split is known.
+	 */
+	budget: {
+		distance: number;
+		distanceStatistical: number | null;
+		distanceSystematic: number | null;
+		velocity: number;
+		peculiarVelocity: number;
+	};
+	/** σ_H0 without the distance's systematic part, and that part alone (km/s/Mpc). */
+	statisticalError: number;
+	systematicError: number | null;
 	peculiarVelocityKmS: number;
 	caution: CalibrationWarning;
 }
@@ -194,7 +209,9 @@ export function peculiarVelocityCaution(
 }
 
 /**
- * H0 = v/d (km/s/Mpc), with (σ_H0/H0)² = (σ_d/d)² + (σ_v/v)² + (σ_pec/v)².
+ * H0 = v/d (km/s/Mpc), with (σ_H0/H0)² = (σ_d/d)² + (σ_v/v)² + (σ_pec/v)², where
+ * σ_d² = σ_d,stat² + σ_d,sys² when the split is given: the distance's systematic part is reported
+ * apart from the statistical terms and from the peculiar velocity.
  */
 export function hubbleConstant(input: HubbleConstantInput): HubbleConstantEstimate {
 	const { velocity, distanceMpc } = input;
@@ -204,18 +221,141 @@ export function hubbleConstant(input: HubbleConstantInput): HubbleConstantEstima
 	requirePositive('distance_mpc', distanceMpc.value);
 	requireNonNegative('distance_mpc_error', distanceMpc.error);
 	requireNonNegative('peculiar_velocity_km_s', sigmaPec);
+	const split = input.distanceSplitMpc;
+	if (split) {
+		requireNonNegative('distance_mpc_err_stat', split.statistical);
+		requireNonNegative('distance_mpc_err_sys', split.systematic);
+	}
 	const value = velocity.value / distanceMpc.value;
 	const budget = {
 		distance: distanceMpc.error / distanceMpc.value,
+		distanceStatistical: split ? split.statistical / distanceMpc.value : null,
+		distanceSystematic: split ? split.systematic / distanceMpc.value : null,
 		velocity: velocity.error / velocity.value,
 		peculiarVelocity: sigmaPec / velocity.value
 	};
 	const error = value * Math.hypot(budget.distance, budget.velocity, budget.peculiarVelocity);
+	const statisticalError =
+		value * Math.hypot(budget.distanceStatistical ?? budget.distance, budget.velocity, budget.peculiarVelocity);
 	return {
 		value,
 		error,
+		statisticalError,
+		systematicError: budget.distanceSystematic === null ? null : value * budget.distanceSystematic,
 		budget,
 		peculiarVelocityKmS: sigmaPec,
 		caution: peculiarVelocityCaution(velocity.value, sigmaPec)
 	};
+}
+
+/**
+ * Adds a frame's velocity to a redshift: 1 + z' = (1 + z)(1 + v/c) (redshifts compose by
+ * multiplication; first order in v/c for the frame's own motion — common practice). Used for the
+ * barycentric correction of a topocentric line and for the CMB dipole, before any q0 term.
+ */
+export function shiftRedshift(z: Measured, frameVelocityKmS: number): Measured {
+	if (!Number.isFinite(frameVelocityKmS)) fail('frame_velocity_km_s', 'must be finite');
+	const factor = 1 + frameVelocityKmS / SPEED_OF_LIGHT_KM_S;
+	return { value: (1 + z.value) * factor - 1, error: z.error * factor };
+}
+
+/** Cautions every H0 from one galaxy carries. */
+export function singleGalaxyCautions(fromLine: boolean): CalibrationWarning[] {
+	const cautions: CalibrationWarning[] = [
+		{
+			code: 'illustrative_single_galaxy',
+			message:
+				'an H0 from one galaxy is illustrative: a measurement of H0 combines many galaxies in the Hubble flow, each with its own distance ladder systematics'
+		}
+	];
+	if (fromLine) {
+		cautions.push({
+			code: 'line_includes_rotation',
+			message:
+				"the Hα of a single HII region includes the disc's rotation at that point (up to ~200–300 km/s in a large spiral, common practice); the systemic velocity needs the galaxy's centre or its rotation curve",
+			field: 'observed_wavelength_nm'
+		});
+	}
+	return cautions;
+}
+
+export interface ObservingSite {
+	/** Geodetic latitude (deg), east longitude (deg) and height above the WGS84 ellipsoid (m). */
+	latitudeDeg: number;
+	longitudeDeg: number;
+	heightM: number;
+}
+
+const AU_KM = 149_597_870.7;
+const DAY_S = 86_400;
+const J2000_JD = 2_451_545.0;
+const EARTH_ROTATION_RAD_S = 7.292115e-5;
+const WGS84_A_M = 6_378_137;
+const WGS84_F = 1 / 298.257223563;
+
+/** Julian date of a UTC instant (UTC taken for UT and TT alike: a minute moves nothing here by more than 1 m/s). */
+function julianDate(date: Date): number {
+	return date.getTime() / (DAY_S * 1000) + 2_440_587.5;
+}
+
+/** Geocentric Sun, ecliptic of J2000 (AU): Meeus, Astronomical Algorithms, ch. 25 low-accuracy series (~0.01°). */
+function sunGeocentricJ2000(jd: number): [number, number, number] {
+	const t = (jd - J2000_JD) / 36_525;
+	const deg = Math.PI / 180;
+	const l0 = 280.46646 + 36_000.76983 * t + 0.0003032 * t * t;
+	const m = 357.52911 + 35_999.05029 * t - 0.0001537 * t * t;
+	const e = 0.016708634 - 0.000042037 * t - 0.0000001267 * t * t;
+	const c =
+		(1.914602 - 0.004817 * t - 0.000014 * t * t) * Math.sin(m * deg) +
+		(0.019993 - 0.000101 * t) * Math.sin(2 * m * deg) +
+		0.000289 * Math.sin(3 * m * deg);
+	const nu = (m + c) * deg;
+	const r = (1.000001018 * (1 - e * e)) / (1 + e * Math.cos(nu));
+	// Longitude of date → mean equinox of J2000 by the general precession in longitude, 1.396971°/century.
+	const lambda = (l0 + c - 1.396971 * t) * deg;
+	const obliquity = 23.4392911 * deg;
+	const x = r * Math.cos(lambda);
+	const y = r * Math.sin(lambda);
+	return [x, y * Math.cos(obliquity), y * Math.sin(obliquity)];
+}
+
+/**
+ * Barycentric correction (km/s) of a topocentric radial velocity towards (α, δ) (ICRS/J2000) seen from
+ * a site at a UTC instant: the observer's velocity projected on the line of sight, v_obs·n̂, from the
+ * Earth's orbital velocity (Meeus ch. 25 Sun, differentiated; the Sun's own motion about the barycentre,
+ * ≲ 0.013 km/s, and the Earth's about the Earth–Moon barycentre, ≲ 0.013 km/s, are left out) and its
+ * rotation ω·(N + h)·cos φ·cos δ·sin(α − LST) with GMST from IAU 1982 (Meeus 12.4). Good to a few
+ * hundredths of a km/s: ample beside a line's measured error and σ_pec.
+ */
+export function barycentricCorrection(
+	target: { raDeg: number; decDeg: number },
+	site: ObservingSite,
+	utc: Date
+): number {
+	const { raDeg, decDeg } = target;
+	const { latitudeDeg, longitudeDeg, heightM } = site;
+	if (!(Math.abs(decDeg) <= 90) || !Number.isFinite(raDeg)) fail('dec_deg', 'must be a finite position');
+	if (!(Math.abs(latitudeDeg) <= 90) || !Number.isFinite(longitudeDeg) || !Number.isFinite(heightM)) {
+		fail('observatory', 'needs a latitude in [−90°, 90°], a longitude and a height');
+	}
+	if (Number.isNaN(utc.getTime())) fail('observed_at', 'must be a valid UTC time');
+	const jd = julianDate(utc);
+	const step = 0.01;
+	const ahead = sunGeocentricJ2000(jd + step);
+	const behind = sunGeocentricJ2000(jd - step);
+	// The Earth moves opposite to the geocentric Sun.
+	const orbit = ahead.map((value, i) => (-(value - behind[i]) / (2 * step)) * (AU_KM / DAY_S));
+	const ra = raDeg * DEG;
+	const dec = decDeg * DEG;
+	const n = [Math.cos(dec) * Math.cos(ra), Math.cos(dec) * Math.sin(ra), Math.sin(dec)];
+	const orbital = orbit[0] * n[0] + orbit[1] * n[1] + orbit[2] * n[2];
+	const t = (jd - J2000_JD) / 36_525;
+	const gmstDeg = 280.46061837 + 360.98564736629 * (jd - J2000_JD) + 0.000387933 * t * t - (t * t * t) / 38_710_000;
+	const lst = (gmstDeg + longitudeDeg) * DEG;
+	const phi = latitudeDeg * DEG;
+	const e2 = WGS84_F * (2 - WGS84_F);
+	const primeVertical = WGS84_A_M / Math.sqrt(1 - e2 * Math.sin(phi) ** 2);
+	const axisDistanceKm = ((primeVertical + heightM) * Math.cos(phi)) / 1000;
+	const rotation = EARTH_ROTATION_RAD_S * axisDistanceKm * Math.cos(dec) * Math.sin(ra - lst);
+	return orbital + rotation;
 }

@@ -91,6 +91,8 @@ describe('reading a host galaxy’s Cepheids from CSV', () => {
 			mu0_err: 0.1,
 			distance_mpc: 6.3,
 			distance_mpc_err: 0.3,
+			distance_mpc_p16: 6.0,
+			distance_mpc_p84: 6.6,
 			rejected: false,
 			warnings: []
 		});
@@ -98,7 +100,16 @@ describe('reading a host galaxy’s Cepheids from CSV', () => {
 			distanceRequest: { relation: 'invented@2', stars },
 			distances: {
 				relation: { ref: 'invented@2', digest: `sha256:${'a'.repeat(64)}`, status: 'current', band: 'V' },
-				settings: { extinction_law: 'ccm89', r_v: 3.1, clip_sigma: 3 },
+				settings: {
+					extinction_law: 'ccm89',
+					r_v: 3.1,
+					clip_sigma: 3,
+					foreground_ebv_err: 0.02,
+					host_metallicity: null,
+					adopted_slope_err: null,
+					crowding_correction: null
+				},
+				distance_convention: 'distance_mpc is the median',
 				results: stars.map((star) => result(star.id)),
 				combined: {
 					mu0: 29,
@@ -106,8 +117,15 @@ describe('reading a host galaxy’s Cepheids from CSV', () => {
 					mu0_err_sys: 0.03,
 					distance_mpc: 6.3,
 					distance_mpc_err: 0.2,
+					distance_mpc_p16: 6.0,
+					distance_mpc_p84: 6.6,
 					n_used: 2,
-					rejected: []
+					n_assumed_metallicity: 1,
+					rejected: [],
+					error_budget: [
+						{ id: 'relation_coefficients', label: 'coefficients', value: 0.02 },
+						{ id: 'foreground_reddening', label: 'foreground', value: 0.0224 }
+					]
 				},
 				warnings: []
 			},
@@ -116,6 +134,9 @@ describe('reading a host galaxy’s Cepheids from CSV', () => {
 		} as unknown as WorksheetRecord;
 		const text = worksheetCsv(record, new Date('2026-12-01T00:00:00Z'));
 		expect(text).toContain(`# relation: invented@2\n# relation_digest: sha256:${'a'.repeat(64)}\n`);
+		// The budget term by term and the interval travel with the file.
+		expect(text).toContain('# mu0_sys_foreground_reddening: 0.0224 (foreground)\n');
+		expect(text).toContain('# distance_mpc_p84: 6.6\n');
 		// OWASP CSV injection: a text cell that a spreadsheet would run is written with a leading quote.
 		expect(text).toContain(`"'=HYPERLINK(""x"")"`);
 		const reread = parseHostCsv(text);

@@ -16,7 +16,17 @@ export const HOST_COLUMNS = [
 	'feh',
 	'feh_err'
 ] as const;
-const OPTIONAL_COLUMNS = ['ebv', 'ebv_err', 'feh', 'feh_err', 'population'] as const;
+const OPTIONAL_COLUMNS = [
+	'ebv',
+	'ebv_err',
+	'feh',
+	'feh_err',
+	'population',
+	'magnitude_system',
+	'wesenheit_ratio'
+] as const;
+/** Optional columns beyond the numbers: what a star says about its own photometric system. */
+const SYSTEM_COLUMNS = ['population', 'magnitude_system', 'wesenheit_ratio'];
 /** Result columns of the worksheet's own CSV export: read past, so an export can be loaded again. */
 const EXPORT_RESULT_COLUMNS = [
 	'abs_mag',
@@ -25,10 +35,12 @@ const EXPORT_RESULT_COLUMNS = [
 	'mu0_err',
 	'distance_mpc',
 	'distance_mpc_err',
+	'distance_mpc_p16',
+	'distance_mpc_p84',
 	'rejected',
 	'warnings'
 ];
-const KNOWN_COLUMNS = new Set<string>([...HOST_COLUMNS, 'population', ...EXPORT_RESULT_COLUMNS]);
+const KNOWN_COLUMNS = new Set<string>([...HOST_COLUMNS, ...SYSTEM_COLUMNS, ...EXPORT_RESULT_COLUMNS]);
 export const MAX_HOST_CSV_BYTES = 16 * 1024 * 1024;
 export const MAX_HOST_STARS = 100_000;
 
@@ -42,6 +54,8 @@ export interface HostStar {
 	feh?: number | null;
 	feh_err?: number | null;
 	population?: PopulationId | null;
+	magnitude_system?: 'Vega' | 'AB' | null;
+	wesenheit_ratio?: number | null;
 }
 
 export interface CsvCellError {
@@ -102,7 +116,7 @@ export function parseHostCsv(text: string): HostCsvResult {
 				line: headerIndex + 1,
 				column: name || `column ${i + 1}`,
 				value: name,
-				message: `unknown column; expected ${[...HOST_COLUMNS, 'population'].join(', ')}`
+				message: `unknown column; expected ${[...HOST_COLUMNS, ...SYSTEM_COLUMNS].join(', ')}`
 			});
 		}
 	}
@@ -151,6 +165,22 @@ export function parseHostCsv(text: string): HostCsvResult {
 				if (value === '') star.population = null;
 				else if ((POPULATION_IDS as readonly string[]).includes(value)) star.population = value as PopulationId;
 				else fail(`must be one of ${POPULATION_IDS.join(', ')}`);
+				return;
+			}
+			if (name === 'magnitude_system') {
+				if (value === '') star.magnitude_system = null;
+				else if (value === 'Vega' || value === 'AB') star.magnitude_system = value;
+				else fail('must be Vega or AB');
+				return;
+			}
+			if (name === 'wesenheit_ratio') {
+				if (value === '') {
+					star.wesenheit_ratio = null;
+					return;
+				}
+				const ratio = numberCell(value, 'positive');
+				if ('message' in ratio) fail(ratio.message);
+				else star.wesenheit_ratio = ratio.value;
 				return;
 			}
 			const rule = RULES[name as keyof typeof RULES];

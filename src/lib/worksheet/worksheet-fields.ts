@@ -12,6 +12,16 @@ export interface WorksheetFields {
 	extinction_law: string;
 	r_v: string;
 	clip_sigma: string;
+	foreground_ebv_err: string;
+	host_metallicity: string;
+	host_metallicity_err: string;
+	host_metallicity_scale: string;
+	host_metallicity_conversion_err: string;
+	adopted_slope_err: string;
+	crowding_correction: string;
+	crowding_correction_err: string;
+	velocity_frame: string;
+	barycentric_correction_km_s: string;
 	velocity_mode: string;
 	velocity_km_s: string;
 	velocity_km_s_err: string;
@@ -30,6 +40,16 @@ export const EMPTY_FIELDS: WorksheetFields = {
 	extinction_law: '',
 	r_v: '',
 	clip_sigma: '3',
+	foreground_ebv_err: '',
+	host_metallicity: '',
+	host_metallicity_err: '',
+	host_metallicity_scale: 'feh',
+	host_metallicity_conversion_err: '',
+	adopted_slope_err: '',
+	crowding_correction: '',
+	crowding_correction_err: '',
+	velocity_frame: '',
+	barycentric_correction_km_s: '',
 	velocity_mode: 'velocity',
 	velocity_km_s: '',
 	velocity_km_s_err: '',
@@ -70,6 +90,10 @@ export interface DistanceRequestBody {
 	extinction_law?: string;
 	r_v?: number;
 	clip_sigma?: number | null;
+	foreground_ebv_err?: number;
+	host_metallicity?: { value: number; error: number; scale: 'feh' | 'o_h'; conversion_error?: number };
+	adopted_slope_err?: number;
+	crowding_correction?: { value: number; error: number };
 }
 
 export function distanceRequestFrom(
@@ -86,6 +110,7 @@ export function distanceRequestFrom(
 	const clip = fields.clip_sigma.trim() === 'none' ? null : optionalNumber(fields.clip_sigma);
 	if (clip === 'invalid' || (typeof clip === 'number' && clip <= 0))
 		errors.clip_sigma = 'σ-clipping needs a number > 0, or "none"';
+	const shared = sharedInputsFrom(fields, errors);
 	if (Object.keys(errors).length > 0) return { errors };
 	return {
 		body: {
@@ -93,21 +118,70 @@ export function distanceRequestFrom(
 			stars,
 			...(fields.extinction_law ? { extinction_law: fields.extinction_law } : {}),
 			...(typeof rV === 'number' ? { r_v: rV } : {}),
-			...(clip === undefined ? {} : { clip_sigma: clip as number | null })
+			...(clip === undefined ? {} : { clip_sigma: clip as number | null }),
+			...shared
 		}
 	};
+}
+
+/** The host-wide inputs; a value and its error come as a pair, errors are ≥ 0. */
+function sharedInputsFrom(fields: WorksheetFields, errors: FieldErrors): Partial<DistanceRequestBody> {
+	const read = (name: keyof WorksheetFields, nonNegative: boolean): number | undefined => {
+		const value = optionalNumber(fields[name]);
+		if (value === 'invalid' || (nonNegative && typeof value === 'number' && value < 0)) {
+			errors[name] = nonNegative ? 'must be a number ≥ 0' : 'must be a number';
+			return undefined;
+		}
+		return value;
+	};
+	const pair = (valueName: keyof WorksheetFields, errorName: keyof WorksheetFields) => {
+		const value = read(valueName, false);
+		const error = read(errorName, true);
+		if ((value === undefined) !== (error === undefined) && !errors[valueName] && !errors[errorName]) {
+			errors[value === undefined ? valueName : errorName] = 'give the value and its error together';
+		}
+		return value !== undefined && error !== undefined ? { value, error } : undefined;
+	};
+	const out: Partial<DistanceRequestBody> = {};
+	const foreground = read('foreground_ebv_err', true);
+	if (foreground !== undefined) out.foreground_ebv_err = foreground;
+	const metallicity = pair('host_metallicity', 'host_metallicity_err');
+	const conversion = read('host_metallicity_conversion_err', true);
+	if (metallicity) {
+		out.host_metallicity = {
+			...metallicity,
+			scale: fields.host_metallicity_scale === 'o_h' ? 'o_h' : 'feh',
+			...(conversion === undefined ? {} : { conversion_error: conversion })
+		};
+	}
+	const slope = read('adopted_slope_err', true);
+	if (slope !== undefined) out.adopted_slope_err = slope;
+	const crowding = pair('crowding_correction', 'crowding_correction_err');
+	if (crowding) out.crowding_correction = crowding;
+	return out;
 }
 
 /** The body of POST /api/v1/hubble for the host's combined distance; the API itself checks it. */
 export function hubbleRequestFrom(
 	fields: WorksheetFields,
-	distance: { distance_mpc: number; distance_mpc_err: number }
+	distance: { distance_mpc: number; mu0_err_stat: number; mu0_err_sys: number }
 ): { body: Record<string, unknown> } | { errors: FieldErrors } {
 	const errors: FieldErrors = {};
+	// First order, as distance_mpc_err: σ_d = d·(ln 10/5)·σ_μ, for each part.
+	const perMag = (distance.distance_mpc * Math.LN10) / 5;
 	const body: Record<string, unknown> = {
 		distance_mpc: distance.distance_mpc,
-		distance_mpc_err: distance.distance_mpc_err
+		distance_mpc_err_stat: perMag * distance.mu0_err_stat,
+		distance_mpc_err_sys: perMag * distance.mu0_err_sys
 	};
+	if (!['topocentric', 'heliocentric', 'cmb'].includes(fields.velocity_frame)) {
+		errors.velocity_frame = 'say in which frame the velocity or wavelength was measured';
+	} else body.velocity_frame = fields.velocity_frame;
+	if (fields.velocity_frame === 'topocentric') {
+		const correction = optionalNumber(fields.barycentric_correction_km_s);
+		if (typeof correction === 'number') body.barycentric_correction_km_s = correction;
+		else errors.barycentric_correction_km_s = 'a topocentric measurement needs its barycentric correction (km/s)';
+	}
 	const put = (name: keyof WorksheetFields, key = name) => {
 		const value = optionalNumber(fields[name]);
 		if (value === 'invalid') errors[name] = 'must be a number';
