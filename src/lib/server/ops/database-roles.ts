@@ -33,15 +33,20 @@ export function roleOfUrl(url: string): string {
 	return decodeURIComponent(new URL(url).username);
 }
 
+/** Refuses a set-up where the app would connect as the role that owns the tables. */
+export async function assertSeparateRoles(ownerOrm: MikroORM, runtimeRole: string): Promise<void> {
+	const [{ owner }] = await ownerOrm.em
+		.getConnection()
+		.execute<{ owner: string }[]>('select current_user as owner');
+	if (owner !== runtimeRole) return;
+	throw new Error(
+		`the runtime role and the owner role are both "${owner}": the app must connect as a role that owns nothing ` +
+			'(DATABASE_URL) and migrations run as the owner (DATABASE_OWNER_URL)'
+	);
+}
+
 /** Grants the runtime role its row access; run as the owner role after every migration. */
 export async function grantRuntimeAccess(ownerOrm: MikroORM, runtimeRole: string): Promise<void> {
 	const connection = ownerOrm.em.getConnection();
-	const [{ owner }] = await connection.execute<{ owner: string }[]>('select current_user as owner');
-	if (owner === runtimeRole) {
-		throw new Error(
-			`the runtime role and the owner role are both "${owner}": the app must connect as a role that owns nothing ` +
-				'(DATABASE_URL) and migrations run as the owner (DATABASE_OWNER_URL)'
-		);
-	}
 	for (const statement of runtimeGrantStatements(runtimeRole)) await connection.execute(statement);
 }

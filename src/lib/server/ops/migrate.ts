@@ -3,7 +3,7 @@ import config from '../../../../mikro-orm.config';
 import { DatabaseSeeder, type DemoSeedContext } from '../../../../seeds/DatabaseSeeder';
 import type { DemoCredential, DemoPasswords } from '../../../../seeds/demo-accounts';
 import { prepareJobQueue } from '../jobs/queue';
-import { grantRuntimeAccess, roleOfUrl } from './database-roles';
+import { assertSeparateRoles, grantRuntimeAccess, roleOfUrl } from './database-roles';
 
 export async function withOrm<T>(url: string, work: (orm: MikroORM) => Promise<T>): Promise<T> {
 	const orm = await MikroORM.init({ ...config, clientUrl: url });
@@ -26,10 +26,12 @@ export interface MigrationTarget {
  * queue's schema, and grants the runtime role its row access; returns the migrations applied.
  */
 export async function migrateDatabase({ ownerUrl, runtimeUrl }: MigrationTarget): Promise<string[]> {
+	const runtimeRole = roleOfUrl(runtimeUrl);
 	return withOrm(ownerUrl, async (orm) => {
+		await assertSeparateRoles(orm, runtimeRole);
 		const applied = await orm.migrator.up();
 		await prepareJobQueue(ownerUrl);
-		await grantRuntimeAccess(orm, roleOfUrl(runtimeUrl));
+		await grantRuntimeAccess(orm, runtimeRole);
 		return applied.map((migration) => migration.name);
 	});
 }
