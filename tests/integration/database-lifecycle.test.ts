@@ -66,7 +66,12 @@ describe('the local cluster of `npm start`, made by a version with one role', ()
 		const previous = process.env.CANDLEBOOK_STATE_DIR;
 		process.env.CANDLEBOOK_STATE_DIR = stateDir;
 		// What an older `npm start` left: one role owning the database and a table, and its state file.
-		const old = { role: 'candlebook', password: randomSecret(), database: 'candlebook', superuserPassword: randomSecret() };
+		const old = {
+			role: 'candlebook',
+			password: randomSecret(),
+			database: 'candlebook',
+			superuserPassword: randomSecret()
+		};
 		const cluster = new PostgresCluster({
 			dataDir: join(stateDir, 'postgres', 'data'),
 			runDir: join(stateDir, 'postgres', 'run'),
@@ -104,9 +109,9 @@ describe('the local cluster of `npm start`, made by a version with one role', ()
 				expect(row).toEqual({ me: 'candlebook_app', owned: 0, version_owner: 'candlebook', old_owner: 'candlebook' });
 				await connection.execute('insert into app_from_before values (1)');
 				await expect(connection.execute('drop table app_from_before')).rejects.toThrow(/must be owner of table/);
-				await expect(
-					connection.execute('alter table app_relation_version disable trigger all')
-				).rejects.toThrow(/must be owner of table app_relation_version/);
+				await expect(connection.execute('alter table app_relation_version disable trigger all')).rejects.toThrow(
+					/must be owner of table app_relation_version/
+				);
 			} finally {
 				await runtime.close(true);
 			}

@@ -172,10 +172,7 @@ describe('the runtime role', () => {
 		expect(await attempt(runtime, `update app_version_lifecycle set updated_at = now()`)).toBe(SUCCEEDED);
 		expect(await attempt(runtime, `delete from app_relation_watch`)).toBe(SUCCEEDED);
 		expect(
-			await attempt(
-				runtime,
-				`insert into app_audit_event (kind, occurred_at, detail) values ('sign-out', now(), '{}')`
-			)
+			await attempt(runtime, `insert into app_audit_event (kind, occurred_at, detail) values ('sign-out', now(), '{}')`)
 		).toBe(SUCCEEDED);
 		const [{ applied }] = await runtime.em
 			.fork()

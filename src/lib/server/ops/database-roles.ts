@@ -35,9 +35,7 @@ export function roleOfUrl(url: string): string {
 
 /** Refuses a set-up where the app would connect as the role that owns the tables. */
 export async function assertSeparateRoles(ownerOrm: MikroORM, runtimeRole: string): Promise<void> {
-	const [{ owner }] = await ownerOrm.em
-		.getConnection()
-		.execute<{ owner: string }[]>('select current_user as owner');
+	const [{ owner }] = await ownerOrm.em.getConnection().execute<{ owner: string }[]>('select current_user as owner');
 	if (owner !== runtimeRole) return;
 	throw new Error(
 		`the runtime role and the owner role are both "${owner}": the app must connect as a role that owns nothing ` +

@@ -13,7 +13,10 @@ export type DemoPlan = 'published' | 'random' | 'none';
 
 /** 127.0.0.0/8, ::1 (also IPv4-mapped) and `localhost`: addresses only this machine can reach. */
 export function isLoopbackHost(host: string): boolean {
-	const bare = host.trim().toLowerCase().replace(/^\[(.*)\]$/, '$1');
+	const bare = host
+		.trim()
+		.toLowerCase()
+		.replace(/^\[(.*)\]$/, '$1');
 	if (bare === 'localhost' || bare.endsWith('.localhost')) return true;
 	const ipv4 = bare.startsWith('::ffff:') ? bare.slice('::ffff:'.length) : bare;
 	if (isIP(ipv4) === 4) return ipv4.startsWith('127.');
@@ -33,7 +36,9 @@ export function demoPlanFor(env: Record<string, string | undefined>): DemoPlan {
 
 function printIssued(issued: DemoCredential[], print: (line: string) => void): void {
 	if (issued.length === 0) return;
-	print('[candlebook] demo accounts and their passwords (shown this once; the published demo password does not work here):');
+	print(
+		'[candlebook] demo accounts and their passwords (shown this once; the published demo password does not work here):'
+	);
 	for (const { email, password } of issued) print(`[candlebook]   ${email}  ${password}`);
 }
 
@@ -51,8 +56,9 @@ export async function seedForStart(
 	if (plan === 'none') {
 		await withOrm(runtimeUrl, (orm) => replacePublishedDemoPasswords(orm.em.fork(), issued));
 		print(
-			`[candlebook] the invented demo is not loaded on ${env.HOST ?? '127.0.0.1'}` +
-				(env.CANDLEBOOK_DEMO === '0' ? '' : ' (reachable by others): set CANDLEBOOK_DEMO=1 to load it')
+			env.CANDLEBOOK_DEMO === '0'
+				? '[candlebook] CANDLEBOOK_DEMO=0: the invented demo is not seeded'
+				: `[candlebook] HOST ${env.HOST} is reachable by others: the invented demo is not seeded (CANDLEBOOK_DEMO=1 seeds it)`
 		);
 	} else {
 		issued = await seedDemo(runtimeUrl, plan);

@@ -86,7 +86,8 @@ export async function openLocalDatabase(): Promise<RunningDatabase> {
 	const stateDir = localStateDir();
 	mkdirSync(stateDir, { recursive: true, mode: 0o755 });
 	const statePath = join(stateDir, 'database.json');
-	const state: LocalState = readJson<LocalState>(statePath) ?? {
+	const earlier = readJson<LocalState>(statePath);
+	const state: LocalState = earlier ?? {
 		role: 'candlebook_owner',
 		database: 'candlebook',
 		password: randomSecret(),
@@ -113,7 +114,7 @@ export async function openLocalDatabase(): Promise<RunningDatabase> {
 	// A cluster left running by a killed process is stopped so it restarts on the port chosen now.
 	if (cluster.isRunning()) cluster.stop();
 	cluster.start();
-	if (!state.runtimeRole) {
+	if (earlier && !earlier.runtimeRole) {
 		console.log(
 			`[candlebook] adding the runtime role ${RUNTIME_ROLE}: the app stops connecting as ${state.role}, which owns the tables`
 		);

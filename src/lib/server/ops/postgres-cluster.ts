@@ -162,8 +162,7 @@ export class PostgresCluster {
 		const ownerRole = quoteIdentifier(owner.role);
 		const runtimeRole = quoteIdentifier(runtime.role);
 		const name = quoteIdentifier(database);
-		const hasDatabase =
-			this.psql(`SELECT 1 FROM pg_database WHERE datname = ${quoteLiteral(database)}`).trim() === '1';
+		const hasDatabase = this.psql(`SELECT 1 FROM pg_database WHERE datname = ${quoteLiteral(database)}`).trim() === '1';
 		if (!hasDatabase) this.psql(`CREATE DATABASE ${name} OWNER ${ownerRole}`);
 		this.psql(`ALTER DATABASE ${name} OWNER TO ${ownerRole}`);
 		this.psql(

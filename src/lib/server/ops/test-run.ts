@@ -32,7 +32,11 @@ const summaryDir = mkdtempSync(join(tmpdir(), 'candlebook-test-summary-'));
  * its own (the demo seed check, so the demo never mixes with test data), named to the tests by
  * CANDLEBOOK_<NAME>_DATABASE_URL (runtime role) and CANDLEBOOK_<NAME>_DATABASE_OWNER_URL (owner role).
  */
-const SEPARATE_DATABASES = { DEMO: 'candlebook_demo_check', ROLES: 'candlebook_roles_check', PUBLIC_DEMO: 'candlebook_public_demo_check' };
+const SEPARATE_DATABASES = {
+	DEMO: 'candlebook_demo_check',
+	ROLES: 'candlebook_roles_check',
+	PUBLIC_DEMO: 'candlebook_public_demo_check'
+};
 const database = await openThrowawayDatabase('candlebook_test', Object.values(SEPARATE_DATABASES));
 const mailDir = join(summaryDir, 'mail');
 const mail = await startMailCatcher({ dir: mailDir });
