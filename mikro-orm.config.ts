@@ -8,7 +8,8 @@ import { ENTITIES } from './src/lib/server/entities/index';
  * because the CLI runs outside Vite; the app validates the same variables at start-up.
  */
 export default defineConfig({
-	clientUrl: process.env.DATABASE_URL,
+	// The CLI creates and applies migrations, so it connects as the owner role when one is named.
+	clientUrl: process.env.DATABASE_OWNER_URL ?? process.env.DATABASE_URL,
 	entities: ENTITIES,
 	extensions: [Migrator, SeedManager],
 	discovery: { warnWhenNoEntities: true },

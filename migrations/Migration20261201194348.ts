@@ -1,4 +1,5 @@
 import { Migration } from '@mikro-orm/migrations';
+import { refuseToDropFrozenRows } from './support/frozen-rows';
 
 /**
  * The registry: calibrator sets and their revisions, relations, frozen versions with their lifecycle,
@@ -87,8 +88,9 @@ $$;`);
     }
   }
 
-  // Drops the registry, frozen versions included: only for a database whose versions nobody relies on.
+  // Drops the registry: refused while any version or calibrator revision exists.
   override async down(): Promise<void> {
+    await refuseToDropFrozenRows(this, ['app_relation_version', 'app_calibrator_revision']);
     for (const table of ['app_relation_version', 'app_calibrator_revision']) {
       this.addSql(`drop trigger if exists "${table}_no_update_or_delete" on "${table}";`);
       this.addSql(`drop trigger if exists "${table}_no_truncate" on "${table}";`);

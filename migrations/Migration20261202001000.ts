@@ -1,4 +1,5 @@
 import { Migration } from '@mikro-orm/migrations';
+import { refuseToDropFrozenRows } from './support/frozen-rows';
 
 /**
  * Calibrator revisions may take values from light-curve analyses: each such value is recorded, insert-only,
@@ -22,8 +23,9 @@ export class Migration20261202001000 extends Migration {
     this.addSql(`create trigger "app_light_curve_result_no_update" before update on "app_light_curve_result" for each row execute function app_refuse_frozen_change();`);
   }
 
-  // Drops the record of which analysis gave which revision value: only for a database nobody relies on.
+  // Drops the record of which analysis gave which revision value: refused while any such record exists.
   override async down(): Promise<void> {
+    await refuseToDropFrozenRows(this, ['app_calibrator_value_source']);
     this.addSql(`drop trigger if exists "app_light_curve_result_no_update" on "app_light_curve_result";`);
     this.addSql(`drop table if exists "app_calibrator_value_source";`);
   }

@@ -2,9 +2,20 @@ import type { GroupStanding, Role } from '../src/lib/server/entities/index';
 
 /**
  * Invented demo people (the `.invalid` domain can never receive mail). Shared by the seeder and the
- * README; the password is for the local demo only.
+ * README; the published password is for a demo on loopback only.
  */
 export const DEMO_PASSWORD = 'candlebook-demo';
+
+/**
+ * `published`: every demo account signs in with DEMO_PASSWORD (a demo on loopback). `random`: each
+ * gets a password of its own, shown once to whoever started the server (a demo others can reach).
+ */
+export type DemoPasswords = 'published' | 'random';
+
+export interface DemoCredential {
+	email: string;
+	password: string;
+}
 
 export interface DemoAccount {
 	email: string;

@@ -107,7 +107,7 @@ export async function runPinnedFetchBenchmarks(): Promise<{ rows: PinnedFetchRow
 	const objects = await startLocalObjectStore(join(scratch, 'objects'));
 	const children: ChildProcess[] = [];
 	try {
-		await migrateDatabase(database.url);
+		await migrateDatabase({ ownerUrl: database.ownerUrl, runtimeUrl: database.url });
 		Object.assign(process.env, objects.env);
 		await seedDemo(database.url);
 		const path = await publicVersionPath(database.url);

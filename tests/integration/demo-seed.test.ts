@@ -16,6 +16,7 @@ import { DEMO_MARKER_SET } from '../../src/lib/server/registry/demo-registry';
  * test cluster (so the demo never mixes with other tests' data), and a second start that adds nothing.
  */
 const url = process.env.CANDLEBOOK_DEMO_DATABASE_URL;
+const ownerUrl = process.env.CANDLEBOOK_DEMO_DATABASE_OWNER_URL;
 let orm: MikroORM;
 
 async function counts() {
@@ -30,8 +31,10 @@ async function counts() {
 }
 
 beforeAll(async () => {
-	if (!url) throw new Error('CANDLEBOOK_DEMO_DATABASE_URL is not set: run integration tests through `npm test`');
-	await migrateDatabase(url);
+	if (!url || !ownerUrl) {
+		throw new Error('CANDLEBOOK_DEMO_DATABASE_URL/_OWNER_URL are not set: run integration tests through `npm test`');
+	}
+	await migrateDatabase({ ownerUrl, runtimeUrl: url });
 	await seedDemo(url);
 	orm = await MikroORM.init({ ...config, clientUrl: url, debug: false });
 }, 300_000);

@@ -23,7 +23,7 @@ import { FitRequestSchema } from '../../src/lib/server/registry/schemas';
 import { setSetting } from '../../src/lib/server/registry/settings';
 import { deprecateVersion, findVersion, listVersions, releaseVersion } from '../../src/lib/server/registry/versions';
 import { proposalToWire } from '../../src/lib/server/registry/wire';
-import { openTestOrm } from '../support/database';
+import { openOwnerTestOrm, openTestOrm } from '../support/database';
 import {
 	createActor,
 	createGroup,
@@ -200,7 +200,8 @@ describe('approvals and versions', () => {
 	test('a frozen version cannot be updated, deleted or truncated, even by the table owner', async () => {
 		const relation = await newRelation();
 		await reviewProposal(em(), reviewerA, (await submitted(relation)).id, 'approve', '');
-		const connection = orm.em.getConnection();
+		const ownerOrm = await openOwnerTestOrm();
+		const connection = ownerOrm.em.getConnection();
 		const [{ owner, me }] = await connection.execute(
 			`select tableowner as owner, current_user as me from pg_tables where tablename = 'app_relation_version'`
 		);
@@ -215,6 +216,7 @@ describe('approvals and versions', () => {
 		await expect(connection.execute(`truncate app_relation_version cascade`)).rejects.toThrow(
 			/frozen: TRUNCATE is not allowed/
 		);
+		await ownerOrm.close(true);
 		const again = await em().findOneOrFail(RelationVersion, version.id);
 		expect(again.digest).toBe(version.digest);
 		expect(verifyDigest(again.content).ok).toBe(true);

@@ -1,11 +1,12 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
-import { openTestOrm } from '../support/database';
+import { openOwnerTestOrm } from '../support/database';
 
 let orm: MikroORM;
 
 beforeAll(async () => {
-	orm = await openTestOrm();
+	// As the owner role: information_schema shows check constraints only to a table's owner.
+	orm = await openOwnerTestOrm();
 });
 
 afterAll(async () => {

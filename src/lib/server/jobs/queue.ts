@@ -25,14 +25,36 @@ export interface FitMessage {
 	jobId: string;
 }
 
-export async function startJobQueue(databaseUrl: string): Promise<PgBoss> {
-	const boss = new PgBoss({ connectionString: databaseUrl, schema: 'pgboss', max: 4 });
-	boss.on('error', (error) => logger.error({ err: error }, 'job queue error'));
+const QUEUES = [FIT_QUEUE, LIGHT_CURVE_QUEUE, STAGING_SWEEP_QUEUE, HELD_MAIL_QUEUE];
+const SCHEMA = 'pgboss';
+
+/**
+ * Creates or upgrades pg-boss's schema and creates the queues, as the owner role: each queue is a
+ * table of its own, and the runtime role creates no tables. Run with the migrations.
+ */
+export async function prepareJobQueue(ownerUrl: string): Promise<void> {
+	const boss = new PgBoss({ connectionString: ownerUrl, schema: SCHEMA, max: 1, supervise: false, schedule: false });
 	await boss.start();
-	await boss.createQueue(FIT_QUEUE);
-	await boss.createQueue(LIGHT_CURVE_QUEUE);
-	await boss.createQueue(STAGING_SWEEP_QUEUE);
-	await boss.createQueue(HELD_MAIL_QUEUE);
+	try {
+		for (const queue of QUEUES) await boss.createQueue(queue);
+	} finally {
+		await boss.stop({ graceful: false, wait: true });
+	}
+}
+
+/** The queue as the runtime role: the schema and queues must already be there (prepareJobQueue). */
+export async function startJobQueue(databaseUrl: string): Promise<PgBoss> {
+	const boss = new PgBoss({ connectionString: databaseUrl, schema: SCHEMA, max: 4, migrate: false });
+	boss.on('error', (error) => logger.error({ err: error }, 'job queue error'));
+	await boss.start().catch((error: unknown) => {
+		throw new Error(
+			`the job queue's schema "${SCHEMA}" is missing or out of date (${(error as Error).message}): ` +
+				'run the migrations as the owner role (`npm run migrate`)',
+			{ cause: error }
+		);
+	});
+	// Already there, so this only checks: creating a missing one would need the owner role.
+	for (const queue of QUEUES) await boss.createQueue(queue);
 	return boss;
 }
 

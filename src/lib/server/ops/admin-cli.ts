@@ -15,8 +15,8 @@ import { EmailSchema, GroupSlugSchema, NewPasswordSchema, RolesSchema, ScopesSch
 import { createToken, listTokens, revokeToken } from '../accounts/token-service';
 import { GroupMembership, User } from '../entities/index';
 import { setSetting } from '../registry/settings';
-import { localStateDir, openLocalDatabase } from './local-database';
-import { PostgresCluster, readJson, type DatabaseCredentials } from './postgres-cluster';
+import { localDatabaseRoles, localStateDir, openLocalDatabase, type LocalState } from './local-database';
+import { PostgresCluster, readJson } from './postgres-cluster';
 
 const USAGE = `npm run admin -- <verb> [options]
 
@@ -89,15 +89,16 @@ async function userByEmail(em: EntityManager, email: string) {
 async function connect(): Promise<{ url: string; stop: () => void }> {
 	if (process.env.DATABASE_URL) return { url: process.env.DATABASE_URL, stop: () => {} };
 	const stateDir = localStateDir();
-	const state = readJson<DatabaseCredentials & { port: number | null }>(join(stateDir, 'database.json'));
+	const state = readJson<LocalState>(join(stateDir, 'database.json'));
 	const cluster = new PostgresCluster({
 		dataDir: join(stateDir, 'postgres', 'data'),
 		runDir: join(stateDir, 'postgres', 'run'),
 		port: state?.port ?? 0,
 		throwaway: false
 	});
-	if (state?.port && cluster.isInitialised && cluster.isRunning()) {
-		return { url: cluster.databaseUrl(state), stop: () => {} };
+	if (state?.port && state.runtimeRole && cluster.isInitialised && cluster.isRunning()) {
+		const { runtime, database } = localDatabaseRoles(state);
+		return { url: cluster.databaseUrl(runtime, database), stop: () => {} };
 	}
 	if (!cluster.isInitialised)
 		throw new UsageError('there is no local database yet: run `npm start` once, or set DATABASE_URL');

@@ -10,7 +10,7 @@ import { onShutdown } from './shutdown';
 
 const database = await openLocalDatabase();
 onShutdown(() => database.stop());
-await migrateDatabase(database.url);
+await migrateDatabase({ ownerUrl: database.ownerUrl, runtimeUrl: database.url });
 if (!hasOwnObjectStore(process.env)) {
 	const objects = await startLocalObjectStore(join(localStateDir(), 'objects'));
 	onShutdown(() => void objects.close());

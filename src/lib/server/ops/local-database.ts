@@ -10,22 +10,46 @@ import {
 	readJson,
 	serverUserCanWrite,
 	writeSecretJson,
-	type DatabaseCredentials
+	type DatabaseRoles,
+	type RoleCredentials
 } from './postgres-cluster';
 import { PROJECT_ROOT } from './project-paths';
 import { ensureSystemPackages, isRoot, POSTGRESQL } from './system-packages';
 
 export interface RunningDatabase {
+	/** The runtime role's URL: what the app, workers and tests connect with. */
 	url: string;
+	/** The owner role's URL: for migrations, and for tests that clean tables. */
+	ownerUrl: string;
 	port: number;
 	/** Where the cluster's files live. */
 	location: string;
 	stop: () => void;
 }
 
-interface LocalState extends DatabaseCredentials {
+/**
+ * `.state/database.json`. `role`/`password` name the owner role: clusters made before the runtime role
+ * existed had only that one role, which owns every table, so it stays the owner.
+ */
+export interface LocalState extends RoleCredentials {
+	database: string;
+	runtimeRole?: string;
+	runtimePassword?: string;
 	superuserPassword: string;
 	port: number | null;
+}
+
+export const RUNTIME_ROLE = 'candlebook_app';
+
+/** The roles of the local cluster, adding the runtime role to a state file written before it existed. */
+export function localDatabaseRoles(state: LocalState): DatabaseRoles {
+	state.runtimeRole ??= RUNTIME_ROLE;
+	state.runtimePassword ??= randomSecret();
+	return {
+		database: state.database,
+		owner: { role: state.role, password: state.password },
+		runtime: { role: state.runtimeRole, password: state.runtimePassword }
+	};
 }
 
 function requestedPort(): number | undefined {
@@ -62,8 +86,9 @@ export async function openLocalDatabase(): Promise<RunningDatabase> {
 	const stateDir = localStateDir();
 	mkdirSync(stateDir, { recursive: true, mode: 0o755 });
 	const statePath = join(stateDir, 'database.json');
-	const state: LocalState = readJson<LocalState>(statePath) ?? {
-		role: 'candlebook',
+	const earlier = readJson<LocalState>(statePath);
+	const state: LocalState = earlier ?? {
+		role: 'candlebook_owner',
 		database: 'candlebook',
 		password: randomSecret(),
 		superuserPassword: randomSecret(),
@@ -89,20 +114,32 @@ export async function openLocalDatabase(): Promise<RunningDatabase> {
 	// A cluster left running by a killed process is stopped so it restarts on the port chosen now.
 	if (cluster.isRunning()) cluster.stop();
 	cluster.start();
-	cluster.ensureDatabase(state);
+	if (earlier && !earlier.runtimeRole) {
+		console.log(
+			`[candlebook] adding the runtime role ${RUNTIME_ROLE}: the app stops connecting as ${state.role}, which owns the tables`
+		);
+	}
+	const roles = localDatabaseRoles(state);
+	cluster.ensureDatabase(roles);
 	writeSecretJson(statePath, { ...state, port });
-	return { url: cluster.databaseUrl(state), port, location: cluster.options.dataDir, stop: () => cluster.stop() };
+	return {
+		url: cluster.databaseUrl(roles.runtime, roles.database),
+		ownerUrl: cluster.databaseUrl(roles.owner, roles.database),
+		port,
+		location: cluster.options.dataDir,
+		stop: () => cluster.stop()
+	};
 }
 
-/** Starts a throwaway cluster in a temp folder; `stop` removes every trace of it. */
 /**
- * A throwaway cluster with the named database, and any `extraDatabases` beside it in the same cluster
- * and owned by the same role (their URLs in `extraUrls`), e.g. one for checking the demo seed alone.
+ * A throwaway cluster in a temp folder (`stop` removes every trace of it) with the named database, and
+ * any `extraDatabases` beside it with the same two roles (their URLs in `extraUrls` and
+ * `extraOwnerUrls`), e.g. one for checking the demo seed alone.
  */
 export async function openThrowawayDatabase(
 	database = 'candlebook_test',
 	extraDatabases: string[] = []
-): Promise<RunningDatabase & { extraUrls: Record<string, string> }> {
+): Promise<RunningDatabase & { extraUrls: Record<string, string>; extraOwnerUrls: Record<string, string> }> {
 	ensureSystemPackages([POSTGRESQL]);
 	const root = mkdtempSync(join(tmpdir(), 'candlebook-pg-'));
 	// mkdtemp makes a root-only folder; the postgres user must be able to pass through it.
@@ -113,7 +150,8 @@ export async function openThrowawayDatabase(
 		port: await freePort(requestedPort()),
 		throwaway: true
 	});
-	const credentials = { role: 'candlebook', password: randomSecret(), database };
+	const owner = { role: 'candlebook_owner', password: randomSecret() };
+	const runtime = { role: RUNTIME_ROLE, password: randomSecret() };
 	const stop = () => {
 		cluster.stop();
 		rmSync(root, { recursive: true, force: true });
@@ -121,17 +159,18 @@ export async function openThrowawayDatabase(
 	try {
 		cluster.initialise();
 		cluster.start();
-		cluster.ensureDatabase(credentials);
-		for (const extra of extraDatabases) cluster.ensureDatabase({ ...credentials, database: extra });
+		for (const name of [database, ...extraDatabases]) cluster.ensureDatabase({ database: name, owner, runtime });
 	} catch (error) {
 		stop();
 		throw error;
 	}
+	const urlsOf = (role: RoleCredentials) =>
+		Object.fromEntries(extraDatabases.map((extra) => [extra, cluster.databaseUrl(role, extra)]));
 	return {
-		url: cluster.databaseUrl(credentials),
-		extraUrls: Object.fromEntries(
-			extraDatabases.map((extra) => [extra, cluster.databaseUrl({ ...credentials, database: extra })])
-		),
+		url: cluster.databaseUrl(runtime, database),
+		ownerUrl: cluster.databaseUrl(owner, database),
+		extraUrls: urlsOf(runtime),
+		extraOwnerUrls: urlsOf(owner),
 		port: cluster.options.port,
 		location: root,
 		stop

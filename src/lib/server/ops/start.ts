@@ -10,7 +10,8 @@ import { buildIfStale } from './build';
 import { startMailCatcher, type MailCatcher } from '../mail/capture-server';
 import { localStateDir, openLocalDatabase } from './local-database';
 import { hasOwnObjectStore, startLocalObjectStore, type LocalObjectStore } from './local-object-store';
-import { migrateDatabase, seedDemo } from './migrate';
+import { seedForStart } from './demo-seeding';
+import { migrateDatabase } from './migrate';
 import { PROJECT_ROOT } from './project-paths';
 import { serverEnvironment } from './server-environment';
 import { onShutdown } from './shutdown';
@@ -25,7 +26,7 @@ onShutdown(() => {
 });
 console.log(`[candlebook] PostgreSQL on 127.0.0.1:${database.port}, data in ${database.location}`);
 
-const applied = await migrateDatabase(database.url);
+const applied = await migrateDatabase({ ownerUrl: database.ownerUrl, runtimeUrl: database.url });
 console.log(
 	applied.length
 		? `[candlebook] applied migrations: ${applied.join(', ')}`
@@ -37,7 +38,7 @@ if (!hasOwnObjectStore(process.env)) {
 	Object.assign(process.env, running.objects.env);
 	console.log(`[candlebook] uploaded files go to a local fake S3 server (${running.objects.env.S3_ENDPOINT})`);
 }
-await seedDemo(database.url);
+await seedForStart(database.url, process.env);
 buildIfStale();
 
 const env = serverEnvironment(database.url);

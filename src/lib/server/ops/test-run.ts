@@ -27,8 +27,17 @@ interface RunnerSummary {
 
 ensureSystemPackages([POSTGRESQL, CHROMIUM, PYTHON3_ASTROPY, LIBXML2_UTILS]);
 const summaryDir = mkdtempSync(join(tmpdir(), 'candlebook-test-summary-'));
-// A second database in the same cluster for the demo seed check, so the demo never mixes with test data.
-const database = await openThrowawayDatabase('candlebook_test', ['candlebook_demo_check']);
+/**
+ * Databases beside the test database in the same cluster, each for the test that needs a database of
+ * its own (the demo seed check, so the demo never mixes with test data), named to the tests by
+ * CANDLEBOOK_<NAME>_DATABASE_URL (runtime role) and CANDLEBOOK_<NAME>_DATABASE_OWNER_URL (owner role).
+ */
+const SEPARATE_DATABASES = {
+	DEMO: 'candlebook_demo_check',
+	ROLES: 'candlebook_roles_check',
+	PUBLIC_DEMO: 'candlebook_public_demo_check'
+};
+const database = await openThrowawayDatabase('candlebook_test', Object.values(SEPARATE_DATABASES));
 const mailDir = join(summaryDir, 'mail');
 const mail = await startMailCatcher({ dir: mailDir });
 const objects = await startLocalObjectStore(join(summaryDir, 'objects'));
@@ -39,12 +48,19 @@ onShutdown(() => {
 	rmSync(summaryDir, { recursive: true, force: true });
 });
 console.log(`[candlebook] throwaway PostgreSQL on 127.0.0.1:${database.port}`);
-await migrateDatabase(database.url);
+await migrateDatabase({ ownerUrl: database.ownerUrl, runtimeUrl: database.url });
 
 const env: NodeJS.ProcessEnv = {
 	...process.env,
+	// The runtime role, as the app connects; tests that clean tables use the owner role.
 	DATABASE_URL: database.url,
-	CANDLEBOOK_DEMO_DATABASE_URL: database.extraUrls.candlebook_demo_check,
+	DATABASE_OWNER_URL: database.ownerUrl,
+	...Object.fromEntries(
+		Object.entries(SEPARATE_DATABASES).flatMap(([name, extra]) => [
+			[`CANDLEBOOK_${name}_DATABASE_URL`, database.extraUrls[extra]],
+			[`CANDLEBOOK_${name}_DATABASE_OWNER_URL`, database.extraOwnerUrls[extra]]
+		])
+	),
 	CANDLEBOOK_TEST_SUMMARY_DIR: summaryDir,
 	CANDLEBOOK_REFERENCE_DATA: process.env.CANDLEBOOK_REFERENCE_DATA ?? join(PROJECT_ROOT, '..', 'shared', 'data'),
 	LOG_LEVEL: process.env.LOG_LEVEL ?? 'warn',
@@ -77,6 +93,8 @@ try {
 			bin('playwright'),
 			['test', '--config', 'tests/browser/playwright.config.ts', ...browserFiles],
 			{
+				// The served app and the browser tests need only the runtime role.
+				DATABASE_OWNER_URL: undefined,
 				CANDLEBOOK_TEST_PORT: String(await freePort()),
 				SMTP_URL: mail.url,
 				CANDLEBOOK_MAIL_CAPTURE_DIR: mailDir
