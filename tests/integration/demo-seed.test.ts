@@ -1,7 +1,8 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import config from '../../mikro-orm.config';
-import { verifyDigest } from '../../src/lib/calibration/index';
+import { verifyDigest, type RelationVersionContent } from '../../src/lib/calibration/index';
+import { reproduceVersion } from '../../src/lib/server/registry/reproduce';
 import { CalibratorRevision, CalibratorSet, CalibratorValueSource, User } from '../../src/lib/server/entities/index';
 import { Relation } from '../../src/lib/server/entities/relation.entity';
 import { RelationVersion } from '../../src/lib/server/entities/relation-version.entity';
@@ -54,6 +55,26 @@ describe('the invented demo', () => {
 		const lifecycles = await em.find(VersionLifecycle, {});
 		expect(lifecycles.some((lifecycle) => lifecycle.deprecatedAt !== null)).toBe(true);
 		expect(lifecycles.some((lifecycle) => lifecycle.embargoUntil !== null)).toBe(true);
+	});
+
+	test('its weighted relation is frozen with the χ²/dof warning and the Lantern Cloud distance as a systematic', async () => {
+		const started = performance.now();
+		const em = orm.em.fork();
+		const version = await em.findOneOrFail(RelationVersion, {
+			relation: { slug: 'kestrel-lantern-weighted-w-vi' },
+			number: 1
+		});
+		const content = version.content as unknown as RelationVersionContent;
+		expect(content.fit.method).toBe('wls');
+		expect(content.fit_quality).toMatchObject({ covariance_scaled: true, errors_too_small: true });
+		expect(content.systematics?.terms).toEqual([
+			expect.objectContaining({ id: 'anchor_distance', value: 18.48, error: 0.03 })
+		]);
+		// M = m − μ: +1σ of the shared distance moves a by −0.03 mag (common practice).
+		expect(content.systematics!.terms[0].effect.zero_point).toBeCloseTo(-0.03, 10);
+		const reproduction = await reproduceVersion(em, null, 'kestrel-lantern-weighted-w-vi', 1);
+		expect(reproduction.digestMatches).toBe(true);
+		console.log(`demo error budget: ${(performance.now() - started).toFixed(0)} ms`);
 	});
 
 	test('its light-curve set takes every period and mean from the invented curves, near the periods they were made with', async () => {
