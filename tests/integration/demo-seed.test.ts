@@ -1,14 +1,14 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import config from '../../mikro-orm.config';
-import { verifyDigest, type RelationVersionContent } from '../../src/lib/calibration/index';
-import { reproduceVersion } from '../../src/lib/server/registry/reproduce';
+import { sealRelationVersion, verifyDigest, type RelationVersionContent } from '../../src/lib/calibration/index';
+import { reproduceContent, reproduceVersion } from '../../src/lib/server/registry/reproduce';
 import { CalibratorRevision, CalibratorSet, CalibratorValueSource, User } from '../../src/lib/server/entities/index';
 import { Relation } from '../../src/lib/server/entities/relation.entity';
 import { RelationVersion } from '../../src/lib/server/entities/relation-version.entity';
 import { VersionLifecycle } from '../../src/lib/server/entities/version-lifecycle.entity';
 import { migrateDatabase, seedDemo } from '../../src/lib/server/ops/migrate';
-import { revisionContent } from '../../src/lib/server/registry/calibrator-sets';
+import { revisionContent, revisionRows } from '../../src/lib/server/registry/calibrator-sets';
 import { DEMO_LIGHT_CURVE_SET, inventedCurveStars } from '../../src/lib/server/registry/demo-light-curves';
 import { DEMO_MARKER_SET } from '../../src/lib/server/registry/demo-registry';
 
@@ -74,6 +74,25 @@ describe('the invented demo', () => {
 		expect(content.systematics!.terms[0].effect.zero_point).toBeCloseTo(-0.03, 10);
 		const reproduction = await reproduceVersion(em, null, 'kestrel-lantern-weighted-w-vi', 1);
 		expect(reproduction.digestMatches).toBe(true);
+
+		// kestrel-lantern-w-vi@2 as engine 1.0.0 froze it in a demo seeded before engine 2: the same content
+		// without the three keys engine 2 added. It still reproduces its own digest.
+		const existing = await em.findOneOrFail(RelationVersion, { relation: { slug: 'kestrel-lantern-w-vi' }, number: 2 });
+		const {
+			systematics: _s,
+			fit_quality: _q,
+			wesenheit_ratio: _r,
+			digest: _d,
+			...rest
+		} = existing.content as unknown as RelationVersionContent & { digest: string };
+		const engineOne = sealRelationVersion({ ...rest, engine_version: '1.0.0' });
+		const revision = await em.findOneOrFail(CalibratorRevision, {
+			calibratorSet: { slug: engineOne.calibrator_set.slug },
+			number: engineOne.calibrator_set.revision
+		});
+		const old = reproduceContent(engineOne, revisionRows(revision));
+		expect(old.differences).toEqual([]);
+		expect(old.recomputedDigest).toBe(engineOne.digest);
 		console.log(`demo error budget: ${(performance.now() - started).toFixed(0)} ms`);
 	});
 
