@@ -1,13 +1,14 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import config from '../../mikro-orm.config';
-import { verifyDigest } from '../../src/lib/calibration/index';
+import { sealRelationVersion, verifyDigest, type RelationVersionContent } from '../../src/lib/calibration/index';
+import { reproduceContent, reproduceVersion } from '../../src/lib/server/registry/reproduce';
 import { CalibratorRevision, CalibratorSet, CalibratorValueSource, User } from '../../src/lib/server/entities/index';
 import { Relation } from '../../src/lib/server/entities/relation.entity';
 import { RelationVersion } from '../../src/lib/server/entities/relation-version.entity';
 import { VersionLifecycle } from '../../src/lib/server/entities/version-lifecycle.entity';
 import { migrateDatabase, seedDemo } from '../../src/lib/server/ops/migrate';
-import { revisionContent } from '../../src/lib/server/registry/calibrator-sets';
+import { revisionContent, revisionRows } from '../../src/lib/server/registry/calibrator-sets';
 import { DEMO_LIGHT_CURVE_SET, inventedCurveStars } from '../../src/lib/server/registry/demo-light-curves';
 import { DEMO_MARKER_SET } from '../../src/lib/server/registry/demo-registry';
 
@@ -57,6 +58,45 @@ describe('the invented demo', () => {
 		const lifecycles = await em.find(VersionLifecycle, {});
 		expect(lifecycles.some((lifecycle) => lifecycle.deprecatedAt !== null)).toBe(true);
 		expect(lifecycles.some((lifecycle) => lifecycle.embargoUntil !== null)).toBe(true);
+	});
+
+	test('its weighted relation is frozen with the χ²/dof warning and the Lantern Cloud distance as a systematic', async () => {
+		const started = performance.now();
+		const em = orm.em.fork();
+		const version = await em.findOneOrFail(RelationVersion, {
+			relation: { slug: 'kestrel-lantern-weighted-w-vi' },
+			number: 1
+		});
+		const content = version.content as unknown as RelationVersionContent;
+		expect(content.fit.method).toBe('wls');
+		expect(content.fit_quality).toMatchObject({ covariance_scaled: true, errors_too_small: true });
+		expect(content.systematics?.terms).toEqual([
+			expect.objectContaining({ id: 'anchor_distance', value: 18.48, error: 0.03 })
+		]);
+		// M = m − μ: +1σ of the shared distance moves a by −0.03 mag (common practice).
+		expect(content.systematics!.terms[0].effect.zero_point).toBeCloseTo(-0.03, 10);
+		const reproduction = await reproduceVersion(em, null, 'kestrel-lantern-weighted-w-vi', 1);
+		expect(reproduction.digestMatches).toBe(true);
+
+		// kestrel-lantern-w-vi@2 as engine 1.0.0 froze it in a demo seeded before engine 2: the same content
+		// without the three keys engine 2 added. It still reproduces its own digest.
+		const existing = await em.findOneOrFail(RelationVersion, { relation: { slug: 'kestrel-lantern-w-vi' }, number: 2 });
+		const {
+			systematics: _s,
+			fit_quality: _q,
+			wesenheit_ratio: _r,
+			digest: _d,
+			...rest
+		} = existing.content as unknown as RelationVersionContent & { digest: string };
+		const engineOne = sealRelationVersion({ ...rest, engine_version: '1.0.0' });
+		const revision = await em.findOneOrFail(CalibratorRevision, {
+			calibratorSet: { slug: engineOne.calibrator_set.slug },
+			number: engineOne.calibrator_set.revision
+		});
+		const old = reproduceContent(engineOne, revisionRows(revision));
+		expect(old.differences).toEqual([]);
+		expect(old.recomputedDigest).toBe(engineOne.digest);
+		console.log(`demo error budget: ${(performance.now() - started).toFixed(0)} ms`);
 	});
 
 	test('its light-curve set takes every period and mean from the invented curves, near the periods they were made with', async () => {

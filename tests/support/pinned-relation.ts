@@ -99,7 +99,11 @@ export async function pinPublishedRelation(
 		engine_version: ENGINE_VERSION,
 		calibrator_set: { slug: 'published-coefficients', revision: 1, digest: `sha256:${'0'.repeat(64)}` },
 		approved_by: [{ name: 'Test pinning', orcid: null }],
-		approved_at: '2026-01-01T00:00:00Z'
+		approved_at: '2026-01-01T00:00:00Z',
+		// Published coefficients, not a refit: no shared terms or fit quality of Candlebook's own.
+		systematics: { terms: [] },
+		fit_quality: { reduced_chi_square: null, degrees_of_freedom: 0, covariance_scaled: false, errors_too_small: false },
+		wesenheit_ratio: null
 	};
 	const later = options.laterEngineContent;
 	const sealed = later

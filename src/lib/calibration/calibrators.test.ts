@@ -105,7 +105,7 @@ describe('Wesenheit band', () => {
 		expect(star.apparentMag.value).toBeCloseTo(5.45, 12);
 		expect(star.apparentMag.error).toBeCloseTo(Math.hypot(2.55 * 0.02, 1.55 * 0.02), 12);
 		expect(star.extinction).toBe(0);
-		expect(prepared.warnings.map((w) => w.code)).toEqual(['wesenheit_not_dereddened']);
+		expect(prepared.warnings.map((w) => w.code)).toEqual(['wesenheit_not_dereddened', 'parallax_zero_point_missing']);
 	});
 
 	test('a W magnitude given directly is used as is', () => {
@@ -114,7 +114,7 @@ describe('Wesenheit band', () => {
 			anchor: 'parallax'
 		});
 		expect(prepared.stars[0].apparentMag).toEqual({ value: 5.2, error: 0.03 });
-		expect(prepared.warnings).toEqual([]);
+		expect(prepared.warnings.map((w) => w.code)).toEqual(['parallax_zero_point_missing']);
 	});
 });
 
@@ -200,7 +200,7 @@ describe('selection and warnings', () => {
 			anchor: 'parallax',
 			validity: { logPeriodMin: 0.4, logPeriodMax: 1.5, fehMin: null, fehMax: null }
 		});
-		expect(prepared.warnings.map((w) => w.code)).toEqual(['outside_validity_range']);
+		expect(prepared.warnings.map((w) => w.code)).toEqual(['outside_validity_range', 'parallax_zero_point_missing']);
 	});
 });
 
@@ -262,7 +262,85 @@ describe('input errors', () => {
 		});
 		expect(prepared.points.map((p) => p.star)).toEqual(['A']);
 		expect(prepared.parallaxPoints.map((p) => p.star)).toEqual(['A', 'far']);
-		expect(prepared.warnings).toEqual([expect.objectContaining({ code: 'non_positive_parallax', star: 'far' })]);
+		expect(prepared.warnings).toEqual([
+			expect.objectContaining({ code: 'non_positive_parallax', star: 'far' }),
+			expect.objectContaining({ code: 'parallax_zero_point_missing' })
+		]);
+	});
+});
+
+describe('parallax zero point: ϖ_true = ϖ_obs − ZP_star − ZP_adopted', () => {
+	test('a positive zero point makes a star farther; a per-star correction is removed first, its error added', () => {
+		const started = performance.now();
+		// Sign convention of Lindegren et al. 2021 (A&A 649, A4): ZP = ϖ_obs − ϖ_true, so ϖ_true = ϖ_obs − ZP.
+		const plain = prepareCalibrators([row({ star: 'A' })], { bandId: 'W_VI', anchor: 'parallax' });
+		const positive = prepareCalibrators([row({ star: 'A' })], {
+			bandId: 'W_VI',
+			anchor: 'parallax',
+			parallaxZeroPoint: { value: 0.02, error: 0.005 }
+		});
+		const muPlain = plain.stars[0].distanceModulus!.value;
+		const muPositive = positive.stars[0].distanceModulus!.value;
+		expect(muPositive).toBeGreaterThan(muPlain);
+		expect(muPositive).toBeCloseTo(10 - 5 * Math.log10(0.5 - 0.02), 12);
+		expect(positive.warnings.map((w) => w.code)).toEqual([]);
+		const corrected = prepareCalibrators(
+			[row({ star: 'A', parallaxZpCorrectionMas: -0.03, parallaxZpCorrectionErrMas: 0.01 })],
+			{ bandId: 'W_VI', anchor: 'parallax', parallaxZeroPoint: { value: 0.014, error: 0.006 } }
+		);
+		const star = corrected.stars[0];
+		expect(star.distanceModulus!.value).toBeCloseTo(10 - 5 * Math.log10(0.5 + 0.03 - 0.014), 12);
+		expect(star.distanceModulus!.error).toBeCloseTo((FIVE_OVER_LN10 * Math.hypot(0.02, 0.01)) / 0.516, 12);
+		// The adopted global zero point's error stays a systematic, outside the star's own error.
+		expect(star.distanceSystematicErr).toBeCloseTo((FIVE_OVER_LN10 * 0.006) / 0.516, 12);
+		expect(corrected.parallaxPoints[0].parallaxMas).toBeCloseTo(0.53, 15);
+		console.log(`parallax zero-point sign: ${(performance.now() - started).toFixed(1)} ms`);
+	});
+
+	test('per-star corrections alone count as adopted; some stars without one warn, naming them', () => {
+		const all = prepareCalibrators(
+			[row({ star: 'A', parallaxZpCorrectionMas: -0.03 }), row({ star: 'B', parallaxZpCorrectionMas: -0.02 })],
+			{ bandId: 'W_VI', anchor: 'parallax' }
+		);
+		expect(all.warnings).toEqual([]);
+		const partial = prepareCalibrators([row({ star: 'A', parallaxZpCorrectionMas: -0.03 }), row({ star: 'B' })], {
+			bandId: 'W_VI',
+			anchor: 'parallax'
+		});
+		expect(partial.warnings).toEqual([
+			expect.objectContaining({ code: 'parallax_zero_point_partial', message: expect.stringContaining('(B)') })
+		]);
+		const issues = issuesOf(() =>
+			prepareCalibrators([row({ star: 'A', parallaxZpCorrectionErrMas: 0.01 })], { bandId: 'W_VI', anchor: 'parallax' })
+		);
+		expect(issues).toEqual([
+			expect.objectContaining({
+				star: 'A',
+				field: 'parallaxZpCorrectionErrMas',
+				message: expect.stringContaining('needs')
+			})
+		]);
+	});
+});
+
+describe('Wesenheit ratio chosen by the curator', () => {
+	test('W is formed with the chosen R; a W given directly with the catalogue R is refused, naming the star', () => {
+		const chosen = prepareCalibrators([row({ star: 'A' })], {
+			bandId: 'W_VI',
+			anchor: 'parallax',
+			parallaxZeroPoint: { value: 0, error: 0 },
+			wesenheitRatio: 1.387
+		});
+		// W = I − R(V − I) (Madore 1982) with V − I = 1.
+		expect(chosen.stars[0].apparentMag.value).toBeCloseTo(7 - 1.387, 12);
+		const issues = issuesOf(() =>
+			prepareCalibrators([row({ star: 'B', mags: { W_VI: { value: 5.2, error: 0.03 } } })], {
+				bandId: 'W_VI',
+				anchor: 'parallax',
+				wesenheitRatio: 1.387
+			})
+		);
+		expect(issues).toEqual([expect.objectContaining({ star: 'B', field: 'mags.W_VI' })]);
 	});
 });
 
@@ -286,7 +364,11 @@ describe.skipIf(!hasReferenceData(GALACTIC))(
 				parallaxMas: get(c, 'plxDR3'),
 				parallaxErrMas: 0.03
 			}));
-			const prepared = prepareCalibrators(rows, { bandId: 'W_VI', anchor: 'parallax' });
+			const prepared = prepareCalibrators(rows, {
+				bandId: 'W_VI',
+				anchor: 'parallax',
+				parallaxZeroPoint: { value: 0, error: 0 }
+			});
 			expect(prepared.points.length).toBe(44);
 			let worst = 0;
 			cells.forEach((c, i) => {

@@ -27,6 +27,13 @@ export interface CalibratorRow {
 	/** Catalogue parallax, zero point not removed (mas). */
 	parallaxMas?: number | null;
 	parallaxErrMas?: number | null;
+	/**
+	 * The star's own catalogue zero point (mas), e.g. from the Lindegren et al. 2021 recipe computed outside
+	 * Candlebook, removed before any adopted global one: ϖ_true = ϖ_obs − ZP_star − ZP_adopted. Its error is
+	 * the star's own and adds to σ_ϖ in quadrature.
+	 */
+	parallaxZpCorrectionMas?: number | null;
+	parallaxZpCorrectionErrMas?: number | null;
 	/** Distance modulus of the star's host (galaxy or cluster). */
 	muHost?: number | null;
 	muHostErr?: number | null;
@@ -48,6 +55,10 @@ export interface PreparationOptions {
 	anchor: AnchorKind;
 	/** Adopted catalogue zero point (parallax anchor); default none. Never applied unless given. */
 	parallaxZeroPoint?: Measured;
+	/** A residual zero point is fitted later (parallax-space fit): no warning that none was adopted. */
+	parallaxZeroPointFitted?: boolean;
+	/** R of a Wesenheit band other than the catalogue's (see bands.ts); ignored for single bands. */
+	wesenheitRatio?: number | null;
 	/**
 	 * Stars whose corrected parallax is not positive: refused with a CalibrationInputError (default), or
 	 * kept for the parallax-space fit only, with a warning.
@@ -159,7 +170,12 @@ function optionalNumberIssues(row: CalibratorRow): InputIssue[] {
 	return issues;
 }
 
-function magnitudeIn(row: CalibratorRow, band: BandDefinition, issues: InputIssue[]): Measured | null {
+function magnitudeIn(
+	row: CalibratorRow,
+	band: BandDefinition,
+	ratio: number | null,
+	issues: InputIssue[]
+): Measured | null {
 	if (typeof row.mags !== 'object' || row.mags === null) {
 		issues.push({ star: row.star, field: 'mags', message: 'no magnitudes' });
 		return null;
@@ -167,6 +183,14 @@ function magnitudeIn(row: CalibratorRow, band: BandDefinition, issues: InputIssu
 	const direct = row.mags[band.id];
 	const valid = (m: Measured | undefined): m is Measured =>
 		m !== undefined && isFiniteNumber(m.value) && isFiniteNumber(m.error) && m.error >= 0;
+	if (direct !== undefined && band.kind === 'wesenheit' && ratio !== null && ratio !== band.ratio) {
+		issues.push({
+			star: row.star,
+			field: `mags.${band.id}`,
+			message: `a ${band.id} magnitude given directly was formed with R = ${band.ratio}, not the chosen R = ${ratio}; give the component magnitudes instead`
+		});
+		return null;
+	}
 	if (direct !== undefined) {
 		if (valid(direct)) return direct;
 		issues.push({ star: row.star, field: `mags.${band.id}`, message: 'needs a finite magnitude and an error ≥ 0' });
@@ -188,7 +212,31 @@ function magnitudeIn(row: CalibratorRow, band: BandDefinition, issues: InputIssu
 		}
 		return null;
 	}
-	return wesenheitMeasured(band, row.mags);
+	return wesenheitMeasured(band, row.mags, ratio === null ? {} : { ratio });
+}
+
+function optionalParallaxCorrectionIssues(row: CalibratorRow): InputIssue[] {
+	const issues: InputIssue[] = [];
+	const correction = row.parallaxZpCorrectionMas;
+	const error = row.parallaxZpCorrectionErrMas;
+	if (!isAbsent(correction) && !isFiniteNumber(correction)) {
+		issues.push({
+			star: row.star,
+			field: 'parallaxZpCorrectionMas',
+			message: `must be a finite number, got ${correction}`
+		});
+	}
+	if (!isAbsent(error) && !(isFiniteNumber(error) && error >= 0)) {
+		issues.push({ star: row.star, field: 'parallaxZpCorrectionErrMas', message: 'must be a finite number ≥ 0' });
+	}
+	if (isAbsent(correction) && !isAbsent(error)) {
+		issues.push({
+			star: row.star,
+			field: 'parallaxZpCorrectionErrMas',
+			message: 'an error needs the zero-point correction it belongs to'
+		});
+	}
+	return issues;
 }
 
 interface Extinction {
@@ -219,6 +267,7 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 	const issues: InputIssue[] = [];
 	const zeroPoint = options.parallaxZeroPoint ?? NO_PARALLAX_ZERO_POINT;
 	const rV = options.rV ?? DEFAULT_RV;
+	const wesenheitRatio = band.kind === 'wesenheit' ? (options.wesenheitRatio ?? null) : null;
 
 	const wantsDereddening = options.deredden ?? band.kind === 'single';
 	if (band.kind === 'wesenheit' && options.deredden === true) {
@@ -287,7 +336,8 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 		}
 
 		const rowIssues = optionalNumberIssues(row);
-		const apparent = magnitudeIn(row, band, rowIssues);
+		if (options.anchor === 'parallax') rowIssues.push(...optionalParallaxCorrectionIssues(row));
+		const apparent = magnitudeIn(row, band, wesenheitRatio, rowIssues);
 		const extinction = extinctionFor(row, perEbv, rowIssues);
 		let distanceModulus: Measured | null = null;
 		let distanceSystematicErr = 0;
@@ -306,12 +356,12 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 					field: 'parallaxErrMas',
 					message: `must be positive, got ${row.parallaxErrMas}`
 				});
-			} else if (!(row.parallaxMas - zeroPoint.value > 0)) {
+			} else if (!(ownParallax(row).value - zeroPoint.value > 0)) {
 				if (options.nonPositiveParallax === 'parallax_space_only') {
 					keepForParallaxSpaceOnly = true;
 					warnings.push({
 						code: 'non_positive_parallax',
-						message: `${row.star}: ϖ − ZP = ${row.parallaxMas - zeroPoint.value} mas has no distance; used in parallax space only`,
+						message: `${row.star}: ϖ − ZP = ${ownParallax(row).value - zeroPoint.value} mas has no distance; used in parallax space only`,
 						star: row.star,
 						field: 'parallaxMas',
 						details: { parallaxMas: row.parallaxMas, zeroPointMas: zeroPoint.value }
@@ -320,12 +370,13 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 					rowIssues.push({
 						star: row.star,
 						field: 'parallaxMas',
-						message: `corrected parallax ϖ − ZP = ${row.parallaxMas - zeroPoint.value} mas is not positive`
+						message: `corrected parallax ϖ − ZP = ${ownParallax(row).value - zeroPoint.value} mas is not positive`
 					});
 				}
 			} else {
+				const own = ownParallax(row);
 				const mu = distanceModulusFromParallax(
-					{ star: row.star, parallaxMas: row.parallaxMas, parallaxErrMas: row.parallaxErrMas },
+					{ star: row.star, parallaxMas: own.value, parallaxErrMas: own.error },
 					zeroPoint
 				);
 				distanceModulus = { value: mu.value, error: mu.error };
@@ -390,14 +441,15 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 			points.push({ star: row.star, logPeriod, absMag, absMagErr, logPeriodErr, feh, fehErr });
 		}
 		if (options.anchor === 'parallax') {
+			const own = ownParallax(row);
 			parallaxPoints.push({
 				star: row.star,
 				logPeriod,
 				logPeriodErr,
 				dereddenedMag,
 				dereddenedMagErr,
-				parallaxMas: row.parallaxMas as number,
-				parallaxErrMas: row.parallaxErrMas as number,
+				parallaxMas: own.value,
+				parallaxErrMas: own.error,
 				feh,
 				fehErr
 			});
@@ -409,6 +461,8 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 
 	const mixture = mixedPopulationWarning(stars.map((star) => star.population));
 	if (mixture) warnings.push(mixture);
+
+	if (options.anchor === 'parallax' && stars.length > 0) warnings.push(...zeroPointWarnings(rows, stars, options));
 
 	const systematics: SharedSystematic[] = [];
 	if (options.anchor === 'parallax' && stars.length > 0) {
@@ -424,4 +478,54 @@ export function prepareCalibrators(rows: readonly CalibratorRow[], options: Prep
 		systematics.push({ kind: 'host_distance', host, value: member.value, error: member.error, stars: member.stars });
 	}
 	return { bandId: band.id, anchor: options.anchor, points, parallaxPoints, stars, excluded, systematics, warnings };
+}
+
+/**
+ * The parallax with the star's own zero point removed, ϖ_obs − ZP_star, and σ_ϖ with the correction's
+ * error added in quadrature; the catalogue parallax as it is when the row has no correction.
+ */
+function ownParallax(row: CalibratorRow): Measured {
+	const correction = isFiniteNumber(row.parallaxZpCorrectionMas) ? row.parallaxZpCorrectionMas : 0;
+	const correctionErr = isFiniteNumber(row.parallaxZpCorrectionErrMas) ? row.parallaxZpCorrectionErrMas : 0;
+	return {
+		value: (row.parallaxMas as number) - correction,
+		error: Math.hypot(row.parallaxErrMas as number, correctionErr)
+	};
+}
+
+/** A parallax anchor with no zero point adopted, fitted or given per star warns, as does a partial per-star one. */
+function zeroPointWarnings(
+	rows: readonly CalibratorRow[],
+	stars: readonly StarPreparation[],
+	options: PreparationOptions
+): CalibrationWarning[] {
+	const used = new Set(stars.map((star) => star.star));
+	const corrected = rows.filter((row) => used.has(row.star) && isFiniteNumber(row.parallaxZpCorrectionMas));
+	if (corrected.length > 0 && corrected.length < used.size) {
+		const missing = rows.filter((row) => used.has(row.star) && !isFiniteNumber(row.parallaxZpCorrectionMas));
+		return [
+			{
+				code: 'parallax_zero_point_partial',
+				message:
+					`${missing.length} of ${used.size} stars have no per-star parallax zero-point correction ` +
+					`(${missing
+						.slice(0, 5)
+						.map((row) => row.star)
+						.join(', ')}${missing.length > 5 ? ', …' : ''}); their parallaxes are used as catalogued`,
+				field: 'parallax_zp_correction_mas',
+				details: { starsWithout: missing.length, stars: used.size }
+			}
+		];
+	}
+	if (corrected.length > 0 || options.parallaxZeroPoint !== undefined || options.parallaxZeroPointFitted) return [];
+	return [
+		{
+			code: 'parallax_zero_point_missing',
+			message:
+				'no parallax zero point was adopted, fitted or given per star: Gaia parallaxes carry an offset of ' +
+				'tens of µas (about −0.017 mas for quasars, Lindegren et al. 2021), which biases every distance the same way',
+			field: 'parallax_offset',
+			details: { gaiaQuasarZeroPointMas: -0.017 }
+		}
+	];
 }

@@ -19,6 +19,7 @@ import {
 	type CalibratorRevisionContent,
 	type RelationVersionContent
 } from './frozen-content';
+import { systematicCovariance } from './systematics';
 import { CalibrationInputError } from './types';
 
 /** Invented relation version (demo numbers). */
@@ -64,8 +65,22 @@ function sampleVersion(): RelationVersionContent {
 		engine_version: ENGINE_VERSION,
 		calibrator_set: { slug: 'mw-cepheids', revision: 2, digest: `sha256:${'ab'.repeat(32)}` },
 		approved_by: [{ name: 'A. Reviewer', orcid: '0000-0002-1825-0097' }],
-		approved_at: '2026-11-30T14:05:00Z'
+		approved_at: '2026-11-30T14:05:00Z',
+		systematics: { terms: [] },
+		fit_quality: {
+			reduced_chi_square: 1.04,
+			degrees_of_freedom: 37,
+			covariance_scaled: false,
+			errors_too_small: false
+		},
+		wesenheit_ratio: 1.55
 	};
+}
+
+/** The same version as engine 1.0.0 froze it: without the keys engine 2 added. */
+function engineOneVersion(): RelationVersionContent {
+	const { systematics: _s, fit_quality: _q, wesenheit_ratio: _r, ...content } = sampleVersion();
+	return { ...content, engine_version: '1.0.0' };
 }
 
 function sampleRevision(): CalibratorRevisionContent {
@@ -319,5 +334,55 @@ describe('frozen content validation', () => {
 			expect(error).toBeInstanceOf(CalibrationInputError);
 			expect((error as CalibrationInputError).issues.map((i) => i.field)).toContain(field);
 		}
+	});
+});
+
+describe('systematics in frozen content (engine 2)', () => {
+	test('engine 1.x content has no systematics keys and keeps validating; engine 2 needs all three', () => {
+		const started = performance.now();
+		expect(() => parseRelationVersionContent(engineOneVersion())).not.toThrow();
+		expect(systematicCovariance(engineOneVersion())).toBeNull();
+		const mixed = { ...engineOneVersion(), wesenheit_ratio: 1.55 };
+		expect(() => parseRelationVersionContent(mixed)).toThrow(
+			/wesenheit_ratio: is not part of versions frozen by engine 1\.0\.0/
+		);
+		const { fit_quality: _q, ...missing } = sampleVersion();
+		expect(() => parseRelationVersionContent(missing)).toThrow(/fit_quality: is required from engine 2 on/);
+		console.log(`engine shapes: ${(performance.now() - started).toFixed(1)} ms`);
+	});
+
+	test('systematicCovariance is Σ effect·effectᵀ over the terms, on a, b and γ', () => {
+		// Outer-product sum of independent shifts (common practice: Cov = Σₖ eₖeₖᵀ for independent unit terms).
+		const content = {
+			...sampleVersion(),
+			systematics: {
+				terms: [
+					{
+						id: 'anchor_distance' as const,
+						label: 'LMC distance modulus 18.477 ± 0.026 mag',
+						value: 18.477,
+						error: 0.026,
+						effect: { zero_point: -0.026, slope: 0, metallicity_term: 0 }
+					},
+					{
+						id: 'fixed_slope' as const,
+						label: 'adopted slope −3.3 ± 0.05 mag/dex',
+						value: -3.3,
+						error: 0.05,
+						effect: { zero_point: 0.01, slope: 0.05, metallicity_term: -0.002 }
+					}
+				]
+			}
+		};
+		expect(() => parseRelationVersionContent(content)).not.toThrow();
+		const covariance = systematicCovariance(content)!;
+		expect(covariance.axes).toEqual(['zero_point', 'slope', 'metallicity_term']);
+		expect(covariance.matrix[0][0]).toBeCloseTo(0.026 ** 2 + 0.01 ** 2, 15);
+		expect(covariance.matrix[0][1]).toBeCloseTo(0.01 * 0.05, 15);
+		expect(covariance.matrix[1][2]).toBeCloseTo(0.05 * -0.002, 15);
+		expect(covariance.matrix[2][2]).toBeCloseTo(0.002 ** 2, 15);
+		const wrong = structuredClone(content);
+		wrong.systematics.terms[0].effect.metallicity_term = null as unknown as number;
+		expect(() => parseRelationVersionContent(wrong)).toThrow(/metallicity_term: must be a number/);
 	});
 });

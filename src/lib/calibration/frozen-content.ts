@@ -4,7 +4,8 @@
  * it. Every key is always present: absent values are written as null, never left out.
  */
 import { z } from 'zod';
-import { REFIT_METHODS } from './fit/types';
+import { REFIT_METHODS, WEIGHTED_COVARIANCE_SCALINGS } from './fit/types';
+import { CALIBRATION_SYSTEMATIC_IDS } from './systematics';
 import {
 	CalibrationInputError,
 	EXTINCTION_LAW_IDS,
@@ -40,8 +41,8 @@ export const RELATION_FORMS = ['period_luminosity', 'period_luminosity_metallici
 const fitSpecSchema = z.strictObject({
 	method: z.enum(REFIT_METHODS),
 	anchor: z.enum(['parallax', 'host']),
-	/** How a weighted fit's covariance was scaled; null for ols. */
-	weighted_covariance: z.enum(['absolute', 'reduced_chi_square']).nullable(),
+	/** The rule a weighted fit's covariance was scaled by (see fit/types.ts); null for ols. */
+	weighted_covariance: z.enum(WEIGHTED_COVARIANCE_SCALINGS).nullable(),
 	fixed_slope: finite.nullable(),
 	fixed_zero_point: finite.nullable(),
 	clipping: z.strictObject({ sigma: z.number().positive(), max_iterations: z.number().int().positive() }).nullable(),
@@ -67,6 +68,35 @@ const fitSpecSchema = z.strictObject({
 	/** σ_int held fixed inside a parallax-space fit; null for the other methods. */
 	assumed_intrinsic_scatter: nonNegative.nullable()
 });
+
+/** Shared error terms of the calibration (engine ≥ 2); see systematics.ts. */
+const systematicsSchema = z.strictObject({
+	terms: z.array(
+		z.strictObject({
+			id: z.enum(CALIBRATION_SYSTEMATIC_IDS),
+			label: z.string().min(1),
+			value: finite.nullable(),
+			error: nonNegative,
+			effect: z.strictObject({ zero_point: finite, slope: finite, metallicity_term: finite.nullable() })
+		})
+	)
+});
+
+/** χ²/dof of the fit and whether the covariance was scaled by it (engine ≥ 2); see fit/fit-quality.ts. */
+const fitQualitySchema = z.strictObject({
+	reduced_chi_square: nonNegative.nullable(),
+	degrees_of_freedom: z.number().int(),
+	covariance_scaled: z.boolean(),
+	errors_too_small: z.boolean()
+});
+
+/** Keys that versions frozen by engine 2 and later carry and engine 1.x versions do not. */
+export const ENGINE_2_CONTENT_KEYS = ['systematics', 'fit_quality', 'wesenheit_ratio'] as const;
+
+/** The major number of an engine version string ("2.0.0" → 2). */
+export function engineMajor(engineVersion: string): number {
+	return Number.parseInt(engineVersion.split('.')[0], 10);
+}
 
 export const relationVersionContentSchema = z
 	.strictObject({
@@ -110,10 +140,33 @@ export const relationVersionContentSchema = z
 				z.strictObject({ name: z.string().min(1), orcid: z.string().regex(ORCID, 'must be an ORCID iD').nullable() })
 			)
 			.min(1),
-		approved_at: utcTimestamp
+		approved_at: utcTimestamp,
+		/** Engine ≥ 2 only (absent from engine 1.x versions, which read as "systematics not recorded"). */
+		systematics: systematicsSchema.optional(),
+		fit_quality: fitQualitySchema.optional(),
+		/** R of the version's Wesenheit band; null for a single band. Engine ≥ 2 only. */
+		wesenheit_ratio: z.number().positive().nullable().optional()
 	})
 	.superRefine((content, ctx) => {
 		const issue = (path: (string | number)[], message: string) => ctx.addIssue({ code: 'custom', path, message });
+		const recordsBudget = engineMajor(content.engine_version) >= 2;
+		for (const key of ENGINE_2_CONTENT_KEYS) {
+			if (recordsBudget && content[key] === undefined) {
+				issue([key], `is required from engine 2 on (write null for an absent value)`);
+			}
+			if (!recordsBudget && content[key] !== undefined) {
+				issue([key], `is not part of versions frozen by engine ${content.engine_version}`);
+			}
+		}
+		const withGamma = content.form === 'period_luminosity_metallicity';
+		content.systematics?.terms.forEach((term, i) => {
+			if ((term.effect.metallicity_term !== null) !== withGamma) {
+				issue(
+					['systematics', 'terms', i, 'effect', 'metallicity_term'],
+					`must be ${withGamma ? 'a number' : 'null'} for form ${content.form}`
+				);
+			}
+		});
 		if (content.ref.split('@')[1] !== String(content.version)) issue(['ref'], 'version in ref must equal version');
 		const hasGamma = content.coefficients.metallicity_term !== null;
 		if (hasGamma !== (content.form === 'period_luminosity_metallicity')) {

@@ -22,3 +22,4 @@ export * from './digest';
 export * from './calibrator-table/index';
 export * from './refit';
 export * from './light-curves/index';
+export * from './systematics';

@@ -86,6 +86,8 @@ export interface ParallaxFitResult {
 	 */
 	parallaxZeroPoint: Measured;
 	systematicCovariance: Covariance;
+	/** ∂θ/∂ZP (per mas) along `covariance.axes`: how each coefficient moves as the adopted zero point grows. */
+	zeroPointSensitivity: number[];
 	chiSquare: number;
 	degreesOfFreedom: number;
 	reducedChiSquare: number | null;
@@ -494,6 +496,7 @@ export function fitParallaxSpace(
 		covariance: { axes, matrix: symmetric(covariance) },
 		parallaxZeroPoint: zp,
 		systematicCovariance: { axes, matrix: outer(sensitivity, zp.error ** 2) },
+		zeroPointSensitivity: sensitivity,
 		chiSquare,
 		degreesOfFreedom,
 		reducedChiSquare: degreesOfFreedom > 0 ? chiSquare / degreesOfFreedom : null,

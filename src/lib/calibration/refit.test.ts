@@ -98,6 +98,134 @@ describe('refit', () => {
 		expect(result.intrinsicScatter).toBeLessThan(0.12);
 	});
 
+	test('engine 2 content records systematics, fit quality and R; engine 1.0.0 content is rebuilt as it was', () => {
+		const started = performance.now();
+		const result = runRefit(inventedHostRows(), { ...BASE_SPEC, method: 'wls', clipping: null });
+		const current = versionContentFromRefit(result, IDENTITY);
+		expect(current.engine_version).toBe('2.0.0');
+		expect(current.systematics?.terms.map((term) => term.id)).toEqual(['anchor_distance']);
+		expect(current.systematics!.terms[0].effect.zero_point).toBeCloseTo(-0.03, 12);
+		expect(current.fit_quality).toEqual({
+			reduced_chi_square: result.reducedChiSquare,
+			degrees_of_freedom: 78,
+			covariance_scaled: false,
+			errors_too_small: result.fitQuality.errorsTooSmall
+		});
+		expect(current.wesenheit_ratio).toBe(1.55);
+		const old = versionContentFromRefit(result, IDENTITY, '1.0.0');
+		expect(old.engine_version).toBe('1.0.0');
+		expect(Object.keys(old)).not.toContain('systematics');
+		expect(Object.keys(old)).not.toContain('fit_quality');
+		expect(Object.keys(old)).not.toContain('wesenheit_ratio');
+		const { systematics: _s, fit_quality: _q, wesenheit_ratio: _r, ...rest } = current;
+		expect({ ...rest, engine_version: '1.0.0' }).toEqual(old);
+		console.log(`engine shapes from one refit: ${(performance.now() - started).toFixed(1)} ms`);
+	});
+
+	test('WLS with errors far too small: covariance scaled, fit_quality and a warning with the numbers', () => {
+		// Errors shrunk tenfold: χ²/dof ≈ 100 (the scatter is σ_int = 0.08 ≫ 0.005-ish errors).
+		const rows = inventedHostRows().map((row) => ({
+			...row,
+			mags: { W_VI: { value: row.mags.W_VI!.value, error: row.mags.W_VI!.error / 10 } }
+		}));
+		const result = runRefit(rows, {
+			...BASE_SPEC,
+			method: 'wls',
+			clipping: null,
+			weightedCovariance: 'reduced_chi_square_above_one'
+		});
+		expect(result.fitQuality.errorsTooSmall).toBe(true);
+		expect(result.fitQuality.covarianceScaled).toBe(true);
+		expect(result.warnings).toContainEqual(
+			expect.objectContaining({ code: 'errors_too_small', field: 'reduced_chi_square' })
+		);
+		const content = versionContentFromRefit(result, IDENTITY);
+		expect(content.fit.weighted_covariance).toBe('reduced_chi_square_above_one');
+		expect(content.fit_quality).toMatchObject({ covariance_scaled: true, errors_too_small: true });
+		const absolute = runRefit(rows, { ...BASE_SPEC, method: 'wls', clipping: null, weightedCovariance: 'absolute' });
+		expect(absolute.fitQuality.covarianceScaled).toBe(false);
+		expect(absolute.errors.zeroPoint! * Math.sqrt(result.reducedChiSquare!)).toBeCloseTo(result.errors.zeroPoint!, 12);
+	});
+
+	test('an adopted slope with its error is a systematic moving the zero point by −σ_b·⟨log P − p0⟩_w', () => {
+		// With b fixed, â = Σw(y − b·x)/Σw, so ∂a/∂b = −Σw·x/Σw (weighted least squares, common practice).
+		const rows = inventedHostRows().map((row) => ({ ...row, muHostErr: 0 }));
+		const spec = { ...BASE_SPEC, clipping: null, fixedSlope: -3.3, fixedSlopeError: 0.05 };
+		const result = runRefit(rows, spec);
+		const x = rows.map((row) => Math.log10(row.periodDays) - 1);
+		const meanX = x.reduce((sum, value) => sum + value, 0) / x.length;
+		const term = result.calibrationSystematics.find((t) => t.id === 'fixed_slope')!;
+		expect(term).toMatchObject({ value: -3.3, error: 0.05 });
+		expect(term.effect.slope).toBeCloseTo(0.05, 12);
+		expect(term.effect.zeroPoint).toBeCloseTo(-0.05 * meanX, 10);
+		expect(result.calibrationSystematics.find((t) => t.id === 'anchor_distance')?.effect.zeroPoint).toBe(0);
+		const without = runRefit(rows, { ...spec, fixedSlopeError: null });
+		expect(without.warnings).toContainEqual(expect.objectContaining({ code: 'fixed_slope_error_missing' }));
+		expect(without.calibrationSystematics.map((t) => t.id)).toEqual(['anchor_distance']);
+	});
+
+	test('a chosen Wesenheit R needs a reason, is recorded and warned about; a single band has none', () => {
+		const rows: CalibratorRow[] = inventedHostRows().map((row) => ({
+			...row,
+			mags: {
+				Ic: { value: row.mags.W_VI!.value + 1.55, error: 0.02 },
+				V: { value: row.mags.W_VI!.value + 2.55, error: 0.02 }
+			}
+		}));
+		const chosen = runRefit(rows, { ...BASE_SPEC, wesenheitRatio: { value: 1.387, reason: 'CCM89, R_V = 3.1' } });
+		expect(chosen.wesenheitRatio).toBe(1.387);
+		expect(chosen.warnings).toContainEqual(
+			expect.objectContaining({ code: 'wesenheit_ratio_chosen', message: expect.stringContaining('CCM89, R_V = 3.1') })
+		);
+		const catalogue = runRefit(rows, BASE_SPEC);
+		// V − I = 1 for every star, so the zero point moves by exactly ΔR·(V − I) = 0.163.
+		expect(chosen.coefficients.zeroPoint - catalogue.coefficients.zeroPoint).toBeCloseTo(0.163, 10);
+		expect(() => runRefit(rows, { ...BASE_SPEC, wesenheitRatio: { value: 1.387, reason: ' ' } })).toThrow(
+			/wesenheitRatio.reason/
+		);
+	});
+
+	test('parallax anchor: the adopted zero point is frozen with ∂θ/∂ZP·σ, equal to refitting with ZP + σ', () => {
+		// Invented stars 0.4–2 kpc away; ∂θ/∂ZP from the Jacobian is checked against a finite difference.
+		const points = syntheticCalibrators(
+			{ zeroPoint: -5.9, slope: -3.3, intrinsicScatter: 0.05 },
+			{ count: 40, seed: 11 }
+		);
+		const rows: CalibratorRow[] = points.map((point, i) => {
+			const parallax = 2.5 - (i % 20) * 0.1;
+			return {
+				star: point.star,
+				population: 'classical_fundamental',
+				periodDays: 10 ** point.logPeriod,
+				mags: { W_VI: { value: point.absMag + 10 - 5 * Math.log10(parallax), error: 0.03 } },
+				parallaxMas: parallax + 0.02,
+				parallaxErrMas: 0.02
+			};
+		});
+		const spec: RefitSpec = {
+			...BASE_SPEC,
+			anchor: 'parallax',
+			method: 'parallax_space',
+			clipping: null,
+			assumedIntrinsicScatter: 0.05,
+			parallaxOffset: { mode: 'given', value: 0.02, error: 0.01 }
+		};
+		const result = runRefit(rows, spec);
+		const term = result.calibrationSystematics.find((t) => t.id === 'parallax_zero_point')!;
+		expect(term).toMatchObject({ value: 0.02, error: 0.01 });
+		const moved = runRefit(rows, { ...spec, parallaxOffset: { mode: 'given', value: 0.03, error: 0.01 } });
+		const shift = moved.coefficients.zeroPoint - result.coefficients.zeroPoint;
+		// A larger zero point makes every star farther and so brighter: a decreases.
+		expect(shift).toBeLessThan(0);
+		expect(Math.abs(term.effect.zeroPoint / shift - 1)).toBeLessThan(0.02);
+		expect(result.warnings.map((w) => w.code)).not.toContain('parallax_zero_point_missing');
+		const inverted = runRefit(rows, { ...spec, method: 'wls', assumedIntrinsicScatter: null });
+		const invertedTerm = inverted.calibrationSystematics.find((t) => t.id === 'parallax_zero_point')!;
+		expect(Math.abs(invertedTerm.effect.zeroPoint / term.effect.zeroPoint - 1)).toBeLessThan(0.1);
+		const none = runRefit(rows, { ...spec, parallaxOffset: null });
+		expect(none.warnings.map((w) => w.code)).toContain('parallax_zero_point_missing');
+	});
+
 	test.each([
 		[{ method: 'parallax_space' as const }, 'method'],
 		[{ parallaxOffset: { mode: 'fitted' as const, value: 0, error: 0.01 } }, 'parallaxOffset'],
@@ -138,6 +266,23 @@ describe.skipIf(!hasReferenceData(OGLE))(
 			// The LMC distance error is shared by every star: a systematic, not in the covariance.
 			expect(result.systematics).toEqual([expect.objectContaining({ kind: 'host_distance', error: 0.026 })]);
 			expect(Math.sqrt(result.covariance.matrix[0][0])).toBeLessThan(0.01);
+			// Frozen: the anchor moves the zero point by exactly −0.026 for +1σ and nothing else (M = m − μ),
+			// and the covariance stays statistical, so a consumer adds 0.026² to σ_a² once.
+			const content = versionContentFromRefit(result, IDENTITY);
+			expect(content.systematics?.terms).toEqual([
+				{
+					id: 'anchor_distance',
+					label: 'LMC distance modulus 18.477 ± 0.026 mag',
+					value: 18.477,
+					error: 0.026,
+					effect: { zero_point: expect.any(Number), slope: expect.any(Number), metallicity_term: null }
+				}
+			]);
+			const [term] = content.systematics!.terms;
+			expect(Math.abs(term.effect.zero_point + 0.026)).toBeLessThan(1e-9);
+			expect(Math.abs(term.effect.slope)).toBeLessThan(1e-9);
+			expect(content.covariance.matrix[0][0]).toBe(result.covariance.matrix[0][0]);
+			expect(content.wesenheit_ratio).toBe(1.55);
 			expect(result.rejected.length).toBeGreaterThan(0);
 			expect(result.rejected.every((rejection) => Math.abs(rejection.standardizedResidual) > 3)).toBe(true);
 		});

@@ -13,8 +13,17 @@ import {
 	type WeightedCovarianceScaling
 } from './fit/types';
 import { ENGINE_VERSION } from './engine-version';
-import { parseRelationVersionContent, type RELATION_FORMS, type RelationVersionContent } from './frozen-content';
+import { fitQualityOf, fitQualityWarning, type FitQuality } from './fit/fit-quality';
+import {
+	engineMajor,
+	parseRelationVersionContent,
+	type RELATION_FORMS,
+	type RelationVersionContent
+} from './frozen-content';
 import { fitParallaxSpace } from './parallax-fit';
+import { getBand } from './bands';
+import { frozenSystematicTerm, type CalibrationSystematic } from './systematics';
+import { calibrationSystematics, type SystematicsContext } from './refit-systematics';
 import {
 	CalibrationInputError,
 	type CalibrationWarning,
@@ -53,6 +62,10 @@ export interface RefitSpec {
 	weightedCovariance: WeightedCovarianceScaling;
 	/** σ_int held fixed inside the parallax-space fit (it does not estimate σ_int); null otherwise. */
 	assumedIntrinsicScatter: number | null;
+	/** 1σ error of an adopted fixed slope: a systematic shared by every star. */
+	fixedSlopeError?: number | null;
+	/** R of the Wesenheit band when the curator chose one other than the catalogue's, with the reason. */
+	wesenheitRatio?: { value: number; reason: string } | null;
 }
 
 export interface RefitResidual {
@@ -101,6 +114,11 @@ export interface RefitResult {
 	degreesOfFreedom: number;
 	reducedChiSquare: number | null;
 	systematics: SharedSystematic[];
+	/** Shared terms with their effect on the coefficients, as a version freezes them. */
+	calibrationSystematics: CalibrationSystematic[];
+	fitQuality: FitQuality;
+	/** R of the Wesenheit band the magnitudes were formed with; null for a single band. */
+	wesenheitRatio: number | null;
 	bootstrap: BootstrapSummary | null;
 	warnings: CalibrationWarning[];
 }
@@ -127,6 +145,23 @@ function specIssues(spec: RefitSpec): InputIssue[] {
 	}
 	if (spec.parallaxOffset && spec.anchor !== 'parallax')
 		issue('parallaxOffset', 'only a parallax anchor has a parallax offset');
+	const fixedSlopeError = spec.fixedSlopeError ?? null;
+	if (fixedSlopeError !== null) {
+		if (spec.fixedSlope === null) issue('fixedSlopeError', 'an error needs the fixed slope it belongs to');
+		else if (!(Number.isFinite(fixedSlopeError) && fixedSlopeError >= 0)) issue('fixedSlopeError', 'must be ≥ 0');
+	}
+	if (spec.wesenheitRatio) {
+		const band = getBand(spec.bandId);
+		if (band.kind !== 'wesenheit')
+			issue('wesenheitRatio', `${spec.bandId} is a single band; only a Wesenheit band has R`);
+		if (!(Number.isFinite(spec.wesenheitRatio.value) && spec.wesenheitRatio.value > 0))
+			issue('wesenheitRatio.value', 'must be a positive number');
+		if (spec.wesenheitRatio.reason.trim() === '')
+			issue(
+				'wesenheitRatio.reason',
+				'say why this R rather than the catalogue value (e.g. the law and R_V it comes from)'
+			);
+	}
 	if (spec.fundamentalise && spec.population !== 'classical_fundamental') {
 		issue('fundamentalise', 'only a classical fundamental-mode relation can take fundamentalised overtone periods');
 	}
@@ -137,7 +172,7 @@ function specIssues(spec: RefitSpec): InputIssue[] {
 	return issues;
 }
 
-function prepare(rows: readonly CalibratorRow[], spec: RefitSpec): PreparedCalibrators {
+export function prepare(rows: readonly CalibratorRow[], spec: RefitSpec): PreparedCalibrators {
 	const { logPeriodMin, logPeriodMax } = spec.periodFilter;
 	const hasRange = logPeriodMin !== null || logPeriodMax !== null;
 	return prepareCalibrators(rows, {
@@ -146,6 +181,8 @@ function prepare(rows: readonly CalibratorRow[], spec: RefitSpec): PreparedCalib
 		parallaxZeroPoint: spec.parallaxOffset
 			? { value: spec.parallaxOffset.value, error: spec.parallaxOffset.error }
 			: undefined,
+		parallaxZeroPointFitted: spec.parallaxOffset?.mode === 'fitted',
+		wesenheitRatio: spec.wesenheitRatio?.value ?? null,
 		nonPositiveParallax: spec.method === 'parallax_space' ? 'parallax_space_only' : 'refuse',
 		extinctionLaw: spec.extinctionLaw,
 		rV: spec.rV ?? undefined,
@@ -160,8 +197,52 @@ const predicted = (c: Coefficients, spec: RefitSpec, logPeriod: number, feh: num
 	c.slope * (logPeriod - spec.pivotLogPeriod) +
 	(c.metallicityTerm ?? 0) * ((feh ?? spec.pivotFeh) - spec.pivotFeh);
 
-/** Runs the refit; throws CalibrationInputError naming every problem with the spec or the rows. */
+/**
+ * Runs the refit; throws CalibrationInputError naming every problem with the spec or the rows. The result
+ * carries the fit's quality (χ²/dof against 1 + 3·√(2/dof), warned about when exceeded), the R of its
+ * Wesenheit band, and its shared systematics with their effect on each coefficient.
+ */
 export function runRefit(rows: readonly CalibratorRow[], spec: RefitSpec): RefitResult {
+	const fitted = fitRefit(rows, spec);
+	const fitQuality = fitQualityOf(fitted.reducedChiSquare, fitted.degreesOfFreedom, fitted.covarianceScaled);
+	const band = getBand(spec.bandId);
+	const wesenheitRatio = band.kind === 'wesenheit' ? (spec.wesenheitRatio?.value ?? band.ratio) : null;
+	const context: SystematicsContext = { rows, spec, fitted };
+	const { terms, warnings: systematicWarnings } = calibrationSystematics(context);
+	const qualityWarning = fitQualityWarning(fitQuality);
+	const ratioWarning =
+		band.kind === 'wesenheit' && spec.wesenheitRatio && spec.wesenheitRatio.value !== band.ratio
+			? [
+					{
+						code: 'wesenheit_ratio_chosen',
+						message: `${band.id} formed with R = ${spec.wesenheitRatio.value} instead of the catalogue's ${band.ratio}: ${spec.wesenheitRatio.reason}`,
+						field: 'wesenheit_ratio',
+						details: {
+							ratio: spec.wesenheitRatio.value,
+							catalogueRatio: band.ratio,
+							reason: spec.wesenheitRatio.reason
+						}
+					}
+				]
+			: [];
+	const { covarianceScaled: _scaled, ...result } = fitted;
+	return {
+		...result,
+		calibrationSystematics: terms,
+		fitQuality,
+		wesenheitRatio,
+		warnings: [...fitted.warnings, ...(qualityWarning ? [qualityWarning] : []), ...ratioWarning, ...systematicWarnings]
+	};
+}
+
+/** A refit before its quality and systematics are judged, with what judging them needs. */
+export type FittedRefit = Omit<RefitResult, 'calibrationSystematics' | 'fitQuality' | 'wesenheitRatio'> & {
+	covarianceScaled: boolean;
+	/** ∂θ/∂ZP per mas along `covariance.axes` (parallax-space fits only). */
+	zeroPointSensitivity: number[] | null;
+};
+
+function fitRefit(rows: readonly CalibratorRow[], spec: RefitSpec): FittedRefit {
 	const issues = specIssues(spec);
 	if (issues.length > 0) throw new CalibrationInputError(issues);
 	const prepared = prepare(rows, spec);
@@ -224,6 +305,8 @@ export function runRefit(rows: readonly CalibratorRow[], spec: RefitSpec): Refit
 			chiSquare: fit.chiSquare,
 			degreesOfFreedom: fit.degreesOfFreedom,
 			reducedChiSquare: fit.reducedChiSquare,
+			covarianceScaled: false,
+			zeroPointSensitivity: fit.zeroPointSensitivity,
 			bootstrap: null,
 			warnings: prepared.warnings
 		};
@@ -273,9 +356,23 @@ export function runRefit(rows: readonly CalibratorRow[], spec: RefitSpec): Refit
 		chiSquare: fit.chiSquare,
 		degreesOfFreedom: fit.degreesOfFreedom,
 		reducedChiSquare: fit.reducedChiSquare,
+		covarianceScaled: fit.covarianceScaled,
+		zeroPointSensitivity: null,
 		bootstrap: fit.bootstrap,
-		warnings: prepared.warnings
+		warnings: [...prepared.warnings, ...fixedSlopeWarnings(spec)]
 	};
+}
+
+function fixedSlopeWarnings(spec: RefitSpec): CalibrationWarning[] {
+	if (spec.fixedSlope === null || spec.fixedSlopeError != null) return [];
+	return [
+		{
+			code: 'fixed_slope_error_missing',
+			message: `the slope is held at ${spec.fixedSlope} without an error, so its uncertainty reaches no coefficient; give the adopted slope's error`,
+			field: 'fixed_slope_error',
+			details: { fixedSlope: spec.fixedSlope }
+		}
+	];
 }
 
 /**
@@ -286,7 +383,7 @@ function intrinsicScatterOf(
 	spec: RefitSpec,
 	fit: ReturnType<typeof fitLinearRelation>,
 	errors: ReadonlyMap<string, number>
-): Pick<RefitResult, 'intrinsicScatter' | 'intrinsicScatterError' | 'intrinsicScatterSource'> {
+): Pick<FittedRefit, 'intrinsicScatter' | 'intrinsicScatterError' | 'intrinsicScatterSource'> {
 	if (fit.intrinsicScatter) {
 		return {
 			intrinsicScatter: fit.intrinsicScatter.value,
@@ -356,9 +453,35 @@ export interface VersionIdentity {
 	approvedAt: string;
 }
 
-/** The frozen content of a version made from a refit, validated against the one schema. */
-export function versionContentFromRefit(result: RefitResult, identity: VersionIdentity): RelationVersionContent {
+/**
+ * The frozen content of a version made from a refit, validated against the one schema. `engineVersion`
+ * selects the content's shape: a version frozen by engine 1.x is rebuilt without the keys engine 2 added
+ * (systematics, fit_quality, wesenheit_ratio), so it keeps reproducing its own digest.
+ */
+export function versionContentFromRefit(
+	result: RefitResult,
+	identity: VersionIdentity,
+	engineVersion: string = ENGINE_VERSION
+): RelationVersionContent {
+	const base = baseContent(result, identity, engineVersion);
+	if (engineMajor(engineVersion) < 2) return parseRelationVersionContent(base);
+	// A result stored before engine 2 lacks these; they are then judged from what it has.
+	const quality = result.fitQuality ?? fitQualityOf(result.reducedChiSquare, result.degreesOfFreedom, false);
 	return parseRelationVersionContent({
+		...base,
+		systematics: { terms: (result.calibrationSystematics ?? []).map(frozenSystematicTerm) },
+		fit_quality: {
+			reduced_chi_square: quality.reducedChiSquare,
+			degrees_of_freedom: quality.degreesOfFreedom,
+			covariance_scaled: quality.covarianceScaled,
+			errors_too_small: quality.errorsTooSmall
+		},
+		wesenheit_ratio: result.wesenheitRatio ?? null
+	});
+}
+
+function baseContent(result: RefitResult, identity: VersionIdentity, engineVersion: string) {
+	return {
 		ref: `${identity.slug}@${identity.version}`,
 		version: identity.version,
 		band: result.spec.bandId,
@@ -387,11 +510,11 @@ export function versionContentFromRefit(result: RefitResult, identity: VersionId
 			feh_max: result.validity.fehMax
 		},
 		fit: frozenFitSpec(result),
-		engine_version: ENGINE_VERSION,
+		engine_version: engineVersion,
 		calibrator_set: { ...identity.calibratorSet },
 		approved_by: identity.approvedBy.map((approver) => ({ ...approver })),
 		approved_at: identity.approvedAt
-	});
+	};
 }
 
 /** Frozen covariances are exactly symmetric; a solver's rounding can differ in the last bit across the diagonal. */

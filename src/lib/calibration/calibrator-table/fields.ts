@@ -55,6 +55,16 @@ const STATIC_FIELDS: FieldDefinition[] = [
 	// Parallaxes may be zero or negative: a parallax-space fit uses them as measured.
 	{ field: 'parallax_mas', kind: 'number', canonicalUnit: 'mas', units: PARALLAX_UNITS },
 	{ field: 'parallax_err_mas', kind: 'number', canonicalUnit: 'mas', units: PARALLAX_UNITS, check: positive },
+	// A per-star catalogue zero point (e.g. from the Lindegren et al. 2021 recipe, computed outside Candlebook):
+	// ϖ_true = ϖ_obs − ZP_star − ZP_adopted.
+	{ field: 'parallax_zp_correction_mas', kind: 'number', canonicalUnit: 'mas', units: PARALLAX_UNITS },
+	{
+		field: 'parallax_zp_correction_err_mas',
+		kind: 'number',
+		canonicalUnit: 'mas',
+		units: PARALLAX_UNITS,
+		check: nonNegative
+	},
 	{ field: 'mu_host', kind: 'number', canonicalUnit: 'mag', units: MAGNITUDE_UNITS },
 	{ field: 'mu_host_err', kind: 'number', canonicalUnit: 'mag', units: MAGNITUDE_UNITS, check: nonNegative },
 	{ field: 'host', kind: 'text', canonicalUnit: null, units: [] },

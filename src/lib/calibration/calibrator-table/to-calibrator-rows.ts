@@ -22,6 +22,8 @@ export function toCalibratorRows(rows: readonly CanonicalRow[]): CalibratorRow[]
 			mags,
 			parallaxMas: numberOrNull(values.parallax_mas),
 			parallaxErrMas: numberOrNull(values.parallax_err_mas),
+			parallaxZpCorrectionMas: numberOrNull(values.parallax_zp_correction_mas),
+			parallaxZpCorrectionErrMas: numberOrNull(values.parallax_zp_correction_err_mas),
 			muHost: numberOrNull(values.mu_host),
 			muHostErr: numberOrNull(values.mu_host_err),
 			host: textOrNull(values.host),

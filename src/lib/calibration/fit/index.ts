@@ -17,3 +17,4 @@ export { validateFitInput, countFreeCoefficients, minimumStars } from './validat
 export * from './types';
 export { syntheticCalibrators, createGaussianStream } from './synthetic';
 export type { SyntheticRelation, SyntheticSampleOptions } from './synthetic';
+export * from './fit-quality';

@@ -78,7 +78,7 @@ describe('weighted least squares', () => {
 	test('with equal errors it gives the OLS coefficients, absolute covariance σ²(XᵀX)⁻¹ and χ² = RSS/σ²', () => {
 		// Identity of weighted least squares with constant weights (common practice).
 		const ols = fitLinearRelation(equalErrors, { method: 'ols' });
-		const wls = fitLinearRelation(equalErrors, { method: 'wls' });
+		const wls = fitLinearRelation(equalErrors, { method: 'wls', weightedCovariance: 'absolute' });
 		expect(wls.coefficients.slope).toBeCloseTo(ols.coefficients.slope, 12);
 		expect(wls.coefficients.zeroPoint).toBeCloseTo(ols.coefficients.zeroPoint, 12);
 		const s2 = ols.residualSd ** 2;
@@ -86,6 +86,23 @@ describe('weighted least squares', () => {
 		expect(wls.chiSquare as number).toBeCloseTo((s2 * ols.degreesOfFreedom) / 0.01, 9);
 		expect(wls.reducedChiSquare as number).toBeCloseTo(s2 / 0.01, 10);
 		expect(wls.covarianceScaling).toBe('absolute');
+		expect(wls.covarianceScaled).toBe(false);
+	});
+
+	test('by default the covariance is scaled by χ²/dof only when χ²/dof > 1, and says so', () => {
+		// Common practice: scatter beyond the stated errors widens the error bars; a lucky fit never narrows them.
+		const ols = fitLinearRelation(equalErrors, { method: 'ols' });
+		const tooSmall = fitLinearRelation(equalErrors, { method: 'wls' });
+		expect(tooSmall.reducedChiSquare as number).toBeGreaterThan(1);
+		expect(tooSmall.covarianceScaling).toBe('reduced_chi_square_above_one');
+		expect(tooSmall.covarianceScaled).toBe(true);
+		expect(tooSmall.errors.zeroPoint as number).toBeCloseTo(ols.errors.zeroPoint as number, 14);
+		const generous = SAMPLE.map((point) => ({ ...point, absMagErr: 10 }));
+		const wide = fitLinearRelation(generous, { method: 'wls' });
+		const absolute = fitLinearRelation(generous, { method: 'wls', weightedCovariance: 'absolute' });
+		expect(wide.reducedChiSquare as number).toBeLessThan(1);
+		expect(wide.covarianceScaled).toBe(false);
+		expect(wide.covariance.matrix).toEqual(absolute.covariance.matrix);
 	});
 
 	test('reduced-χ² scaling turns the equal-error WLS covariance into the OLS covariance', () => {

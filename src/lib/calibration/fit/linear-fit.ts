@@ -21,7 +21,14 @@ import {
 	type ScatterFit,
 	type WeightedSolver
 } from './model';
-import type { BootstrapSummary, CalibratorPoint, LinearFitOptions, LinearFitResult } from './types';
+import { weightedCovarianceFactor } from './fit-quality';
+import type {
+	BootstrapSummary,
+	CalibratorPoint,
+	LinearFitOptions,
+	LinearFitResult,
+	WeightedCovarianceScaling
+} from './types';
 import { minimumStars, validateFitInput } from './validation';
 
 interface SubsetFit {
@@ -89,6 +96,9 @@ function fitSubset(data: FitData, model: FitModel, indices: number[], solver: We
 	};
 }
 
+const reducedChiSquareOf = (subset: SubsetFit) =>
+	subset.chiSquare === null || subset.degreesOfFreedom <= 0 ? null : subset.chiSquare / subset.degreesOfFreedom;
+
 /**
  * Residual of star i divided by its error under the fit: the residual SD √(Σr²/dof) for ols;
  * √vᵢ for wls (times √(χ²/dof) when the covariance is scaled by it); √(vᵢ) with σ_int for ml_scatter.
@@ -97,7 +107,7 @@ function standardizedResidual(
 	data: FitData,
 	model: FitModel,
 	subset: SubsetFit,
-	scaleByReducedChiSquare: boolean,
+	scaling: WeightedCovarianceScaling,
 	i: number
 ): number {
 	const residual = data.y[i] - predict(data, subset.fit, i);
@@ -106,7 +116,7 @@ function standardizedResidual(
 		return sd > 0 ? residual / sd : 0;
 	}
 	let variance = starVariance(data, subset.fit.slope, subset.fit.metallicityTerm, subset.intrinsicVariance, i);
-	if (scaleByReducedChiSquare && subset.chiSquare !== null) variance *= subset.chiSquare / subset.degreesOfFreedom;
+	variance *= weightedCovarianceFactor(scaling, reducedChiSquareOf(subset));
 	return variance > 0 ? residual / Math.sqrt(variance) : 0;
 }
 
@@ -115,8 +125,8 @@ function standardizedResidual(
  * magnitudes are already known.
  *
  * - `ols`: unit weights; covariance s²(XᵀX)⁻¹ with s² = Σr²/dof.
- * - `wls`: weights 1/vᵢ, vᵢ = σ_M,i² + b²σ_logP,i² (+ γ²σ_[Fe/H],i²); covariance (XᵀWX)⁻¹, or
- *   (χ²/dof)·(XᵀWX)⁻¹ with `weightedCovariance: 'reduced_chi_square'`.
+ * - `wls`: weights 1/vᵢ, vᵢ = σ_M,i² + b²σ_logP,i² (+ γ²σ_[Fe/H],i²); covariance max(1, χ²/dof)·(XᵀWX)⁻¹
+ *   by default, (XᵀWX)⁻¹ with `weightedCovariance: 'absolute'`, (χ²/dof)·(XᵀWX)⁻¹ with `'reduced_chi_square'`.
  * - `ml_scatter`: as wls with σ_int² added to every vᵢ, σ_int maximising the Gaussian likelihood;
  *   covariance (XᵀWX)⁻¹ at that σ_int, σ_int's error from the profile likelihood.
  * - `fixedSlope`: zero point (and γ) only; `fixedZeroPoint`: regression through (p0, a).
@@ -142,7 +152,8 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 		fixedSlope,
 		scatterEstimator: options.intrinsicScatterEstimator ?? 'ml'
 	};
-	const scaleByReducedChiSquare = options.method !== 'ols' && options.weightedCovariance === 'reduced_chi_square';
+	const scaling: WeightedCovarianceScaling =
+		options.weightedCovariance ?? (options.method === 'wls' ? 'reduced_chi_square_above_one' : 'absolute');
 
 	const data = prepareFitData(points, pivotLogPeriod, pivotFeh, withMetallicity);
 	const clipped = clipIteratively(
@@ -150,7 +161,7 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 		options.clipping ?? null,
 		minimumStars(options),
 		(kept) => fitSubset(data, model, kept, qrSolver),
-		(subset, i) => standardizedResidual(data, model, subset, scaleByReducedChiSquare, i)
+		(subset, i) => standardizedResidual(data, model, subset, scaling, i)
 	);
 	const subset = clipped.state;
 	const { fit, degreesOfFreedom } = subset;
@@ -168,9 +179,9 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 		throw error;
 	}
 	const residualVariance = subset.residualSumOfSquares / degreesOfFreedom;
-	const reducedChiSquare = subset.chiSquare === null ? null : subset.chiSquare / degreesOfFreedom;
-	const covarianceFactor =
-		options.method === 'ols' ? residualVariance : scaleByReducedChiSquare ? (reducedChiSquare ?? 1) : 1;
+	const reducedChiSquare = reducedChiSquareOf(subset);
+	const weightedFactor = options.method === 'ols' ? 1 : weightedCovarianceFactor(scaling, reducedChiSquare);
+	const covarianceFactor = options.method === 'ols' ? residualVariance : weightedFactor;
 	const matrix = solution.unscaledCovariance.map((row) => row.map((value) => value * covarianceFactor));
 	const errorOf = (axis: CoefficientAxis) => {
 		const j = axes.indexOf(axis);
@@ -181,12 +192,12 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 	const residuals = data.stars.map((star, i) => ({
 		star,
 		residual: data.y[i] - predict(data, fit, i),
-		standardizedResidual: standardizedResidual(data, model, subset, scaleByReducedChiSquare, i),
+		standardizedResidual: standardizedResidual(data, model, subset, scaling, i),
 		used: keptSet.has(i)
 	}));
 
 	const bootstrap = options.bootstrap
-		? bootstrapWholeProcedure(data, model, options, scaleByReducedChiSquare, options.bootstrap)
+		? bootstrapWholeProcedure(data, model, options, scaling, options.bootstrap)
 		: null;
 
 	return {
@@ -200,8 +211,8 @@ export function fitLinearRelation(points: readonly CalibratorPoint[], options: L
 		},
 		fixed: { zeroPoint: fixedZeroPoint !== null, slope: fixedSlope !== null },
 		covariance: { axes: [...axes], matrix },
-		covarianceScaling:
-			options.method === 'ols' ? 'residual_variance' : scaleByReducedChiSquare ? 'reduced_chi_square' : 'absolute',
+		covarianceScaling: options.method === 'ols' ? 'residual_variance' : scaling,
+		covarianceScaled: options.method !== 'ols' && weightedFactor !== 1,
 		errors: {
 			zeroPoint: errorOf('zero_point'),
 			slope: errorOf('slope'),
@@ -245,7 +256,7 @@ function bootstrapWholeProcedure(
 	data: FitData,
 	model: FitModel,
 	options: LinearFitOptions,
-	scaleByReducedChiSquare: boolean,
+	scaling: WeightedCovarianceScaling,
 	bootstrap: NonNullable<LinearFitOptions['bootstrap']>
 ): BootstrapSummary {
 	const everyStar = data.stars.map((_, i) => i);
@@ -274,7 +285,7 @@ function bootstrapWholeProcedure(
 						kept.map((k) => indices[k]),
 						closedFormSolver
 					),
-				(subset, k) => standardizedResidual(data, model, subset, scaleByReducedChiSquare, indices[k])
+				(subset, k) => standardizedResidual(data, model, subset, scaling, indices[k])
 			);
 			rejectedTotal += outcome.rejected.length;
 			clippedResamples++;

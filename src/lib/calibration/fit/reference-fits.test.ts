@@ -1,5 +1,6 @@
 import { describe, expect, test } from 'vitest';
 import { hasReferenceData, missingReason, readReferenceFile } from '../../../../tests/support/reference-data';
+import { fitQualityOf, fitQualityWarning } from './fit-quality';
 import { fitLinearRelation } from './linear-fit';
 import type { CalibratorPoint } from './types';
 
@@ -55,18 +56,58 @@ describe.skipIf(!hasReferenceData(GALACTIC))(
 			expect(rows).toHaveLength(59);
 		});
 
+		const pointsIn = (band: string, absMagErr: number): CalibratorPoint[] => {
+			const column = header.indexOf(TABLE7_COLUMN[band]);
+			return rows
+				.filter((row) => row[column] !== '' && row[column] !== undefined)
+				.map((row) => ({ star: row[0], logPeriod: Number(row[1]), absMag: Number(row[column]), absMagErr }));
+		};
+
 		test.each(published.map((relation) => [relation.band, relation] as const))(
-			'%s: unweighted fit at pivot log P = 1 matches the published slope and zero point within their σ',
+			'%s: unweighted fit at pivot log P = 1 matches the published slope and zero point to 0.01 mag',
 			(band, relation) => {
-				const column = header.indexOf(TABLE7_COLUMN[band]);
-				const points: CalibratorPoint[] = rows
-					.filter((row) => row[column] !== '' && row[column] !== undefined)
-					.map((row) => ({ star: row[0], logPeriod: Number(row[1]), absMag: Number(row[column]), absMagErr: 0 }));
-				const fit = fitLinearRelation(points, { method: 'ols', pivotLogPeriod: 1 });
-				expect(Math.abs(fit.coefficients.slope - relation.slope)).toBeLessThanOrEqual(relation.slopeError);
-				expect(Math.abs(fit.coefficients.zeroPoint - relation.zeroPoint)).toBeLessThanOrEqual(relation.zeroPointError);
+				const started = performance.now();
+				const fit = fitLinearRelation(pointsIn(band, 0), { method: 'ols', pivotLogPeriod: 1 });
+				expect(Math.abs(fit.coefficients.slope - relation.slope)).toBeLessThanOrEqual(0.01);
+				expect(Math.abs(fit.coefficients.zeroPoint - relation.zeroPoint)).toBeLessThanOrEqual(0.01);
+				// The published σ are not asserted: the table does not say how they were computed, and their ratio
+				// to the refit's OLS standard errors is not one factor across bands (about 1.2 in B down to about
+				// 0.45 in the Wesenheit bands), so they come from another error model, not from this OLS on these stars.
+				const ratio = (published: number, refit: number | null) => (published / (refit as number)).toFixed(2);
+				console.log(
+					`${band}: σ ratio published/refit — slope ${ratio(relation.slopeError, fit.errors.slope)}, ` +
+						`zero point ${ratio(relation.zeroPointError, fit.errors.zeroPoint)} ` +
+						`(${(performance.now() - started).toFixed(1)} ms)`
+				);
 			}
 		);
+
+		test('V with σ = 0.05 mag per star: the χ²/dof-scaled WLS zero-point error equals the OLS one, 0.0244', () => {
+			// Fouqué et al. 2007 Table 7 (galactic-calibrators/table7.csv). With equal weights the WLS covariance
+			// scaled by χ²/dof is the OLS covariance s²(XᵀX)⁻¹ (common practice); χ²/dof ≈ 13.9 here.
+			const started = performance.now();
+			const ols = fitLinearRelation(pointsIn('V', 0.05), { method: 'ols', pivotLogPeriod: 1 });
+			const wls = fitLinearRelation(pointsIn('V', 0.05), { method: 'wls', pivotLogPeriod: 1 });
+			const absolute = fitLinearRelation(pointsIn('V', 0.05), {
+				method: 'wls',
+				pivotLogPeriod: 1,
+				weightedCovariance: 'absolute'
+			});
+			expect(Math.abs((ols.errors.zeroPoint as number) - 0.0244)).toBeLessThan(1e-4);
+			expect(Math.abs((wls.errors.zeroPoint as number) - (ols.errors.zeroPoint as number))).toBeLessThan(1e-4);
+			expect(Math.abs((wls.reducedChiSquare as number) - 13.9)).toBeLessThan(0.05);
+			expect(wls.covarianceScaled).toBe(true);
+			const quality = fitQualityOf(wls.reducedChiSquare, wls.degreesOfFreedom, wls.covarianceScaled);
+			expect(quality.errorsTooSmall).toBe(true);
+			expect(fitQualityWarning(quality)?.details).toMatchObject({ degreesOfFreedom: 57 });
+			// Unscaled, the error is √13.9 ≈ 3.7 times too small: 0.05/√59 ≈ 0.0066.
+			expect(absolute.errors.zeroPoint as number).toBeLessThan(0.007);
+			console.log(
+				`table7 V: σ_a OLS ${(ols.errors.zeroPoint as number).toFixed(5)}, scaled WLS ` +
+					`${(wls.errors.zeroPoint as number).toFixed(5)}, absolute WLS ${(absolute.errors.zeroPoint as number).toFixed(5)}, ` +
+					`χ²/dof ${(wls.reducedChiSquare as number).toFixed(2)} (${(performance.now() - started).toFixed(1)} ms)`
+			);
+		});
 	}
 );
 

@@ -43,11 +43,16 @@ export interface BootstrapOptions {
 
 /**
  * How a weighted fit turns (XᵀWX)⁻¹ into the coefficient covariance:
- * `absolute` takes the per-star errors at face value (the default for wls and ml_scatter);
- * `reduced_chi_square` multiplies it by χ²/dof, as when the errors are only known up to a factor.
+ * `reduced_chi_square_above_one` multiplies it by χ²/dof when χ²/dof > 1 and leaves it alone otherwise,
+ * so scatter beyond the stated errors widens the error bars but a lucky fit never narrows them (the
+ * default for wls; common practice);
+ * `absolute` takes the per-star errors at face value (the default for ml_scatter, whose σ_int already
+ * absorbs the excess scatter; for wls only when asked for);
+ * `reduced_chi_square` always multiplies it by χ²/dof, as when the errors are only known up to a factor.
  * Ordinary least squares always uses the residual variance.
  */
-export type WeightedCovarianceScaling = 'absolute' | 'reduced_chi_square';
+export const WEIGHTED_COVARIANCE_SCALINGS = ['reduced_chi_square_above_one', 'absolute', 'reduced_chi_square'] as const;
+export type WeightedCovarianceScaling = (typeof WEIGHTED_COVARIANCE_SCALINGS)[number];
 
 export interface LinearFitOptions {
 	method: FitMethod;
@@ -62,7 +67,7 @@ export interface LinearFitOptions {
 	fixedZeroPoint?: number | null;
 	clipping?: ClippingOptions | null;
 	bootstrap?: BootstrapOptions | null;
-	/** Default `absolute`. */
+	/** Default `reduced_chi_square_above_one` for wls, `absolute` for ml_scatter. */
 	weightedCovariance?: WeightedCovarianceScaling;
 	/** How ml_scatter estimates σ_int; default `ml` (see IntrinsicScatterEstimator). */
 	intrinsicScatterEstimator?: IntrinsicScatterEstimator;
@@ -118,8 +123,10 @@ export interface LinearFitResult {
 	fixed: { zeroPoint: boolean; slope: boolean };
 	/** Covariance of the fitted coefficients only (fixed ones carry no axis). */
 	covariance: Covariance;
-	/** How `covariance` was scaled. */
+	/** How `covariance` was scaled: the rule asked for. */
 	covarianceScaling: 'residual_variance' | WeightedCovarianceScaling;
+	/** Whether `covariance` was in fact multiplied by χ²/dof (false for ols, which uses the residual variance). */
+	covarianceScaled: boolean;
 	/** 1σ errors of the coefficients; null for a fixed or absent coefficient. */
 	errors: { zeroPoint: number | null; slope: number | null; metallicityTerm: number | null };
 	/** σ_int with its error for ml_scatter; null otherwise. */

@@ -1,5 +1,5 @@
 import { CalibrationInputError, type InputIssue } from '../types';
-import { FIT_METHODS, type CalibratorPoint, type LinearFitOptions } from './types';
+import { FIT_METHODS, WEIGHTED_COVARIANCE_SCALINGS, type CalibratorPoint, type LinearFitOptions } from './types';
 
 /** Number of coefficients a fit with these options estimates (σ_int not included). */
 export function countFreeCoefficients(options: LinearFitOptions): number {
@@ -25,6 +25,15 @@ export function validateFitInput(points: readonly CalibratorPoint[], options: Li
 
 	if (!(FIT_METHODS as readonly string[]).includes(options.method)) {
 		option('method', `unknown method "${String(options.method)}" (expected ${FIT_METHODS.join(', ')})`);
+	}
+	if (
+		options.weightedCovariance !== undefined &&
+		!(WEIGHTED_COVARIANCE_SCALINGS as readonly string[]).includes(options.weightedCovariance)
+	) {
+		option(
+			'weightedCovariance',
+			`unknown scaling "${String(options.weightedCovariance)}" (expected ${WEIGHTED_COVARIANCE_SCALINGS.join(', ')})`
+		);
 	}
 	for (const field of ['pivotLogPeriod', 'pivotFeh', 'fixedSlope', 'fixedZeroPoint'] as const) {
 		const value = options[field];

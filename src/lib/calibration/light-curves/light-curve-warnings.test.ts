@@ -44,6 +44,16 @@ describe('light-curve warnings', () => {
 		expect(codes(input)).toContain(code);
 	});
 
+	test('a low amplitude names blending as a possible cause; a high one does not', () => {
+		// Blending with unresolved neighbours dilutes a Cepheid's amplitude (common practice).
+		const started = performance.now();
+		const message = (peakToPeakAmplitude: number) =>
+			lightCurveWarnings({ ...clean, peakToPeakAmplitude }).find((w) => w.code === 'amplitude_unusual')?.message;
+		expect(message(0.02)).toContain('blending');
+		expect(message(5)).not.toContain('blending');
+		console.log(`amplitude warning: ${(performance.now() - started).toFixed(1)} ms`);
+	});
+
 	test('a skewed curve (R21 = 0.45) is unusual for a first overtone, not for a fundamental-mode star', () => {
 		const shape = { ...clean.shape, r21: 0.45 };
 		expect(

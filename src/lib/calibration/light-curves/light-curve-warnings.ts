@@ -127,7 +127,10 @@ export function lightCurveWarnings(input: WarningInput): CalibrationWarning[] {
 	if (amplitude < range.min || amplitude > range.max) {
 		warn(
 			'amplitude_unusual',
-			`peak-to-peak amplitude ${amplitude.toFixed(3)} mag is outside ${range.min}–${range.max} mag, usual for ${population}`,
+			`peak-to-peak amplitude ${amplitude.toFixed(3)} mag is outside ${range.min}–${range.max} mag, usual for ${population}` +
+				(amplitude < range.min
+					? '; a low amplitude may also mean blending: light of unresolved neighbours dilutes the variation and brightens the mean magnitude'
+					: ''),
 			'amplitude',
 			{
 				amplitude,

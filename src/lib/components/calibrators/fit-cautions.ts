@@ -13,7 +13,7 @@ export interface FitCautionInput {
 }
 
 export interface FitCaution {
-	code: 'mixed_populations' | 'period_range_beyond_calibrators' | 'small_sample' | 'engine';
+	code: 'mixed_populations' | 'period_range_beyond_calibrators' | 'small_sample' | 'errors_too_small' | 'engine';
 	message: string;
 }
 
@@ -48,7 +48,11 @@ export function fitCautions(input: FitCautionInput): FitCaution[] {
 	}
 	for (const warning of input.warnings) {
 		if (warning.code === 'mixed_populations') continue;
-		cautions.push({ code: 'engine', message: warning.message });
+		// χ²/dof beyond 1 + 3·√(2/dof): the error bars a version would serve rest on errors that are too small.
+		cautions.push({
+			code: warning.code === 'errors_too_small' ? 'errors_too_small' : 'engine',
+			message: warning.message
+		});
 	}
 	return cautions;
 }

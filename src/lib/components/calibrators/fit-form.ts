@@ -12,6 +12,7 @@ export interface FitFormValues {
 	logPeriodMax: string;
 	fundamentalise: boolean;
 	fixedSlope: string;
+	fixedSlopeError: string;
 	clipping: boolean;
 	clipSigma: string;
 	clipIterations: string;
@@ -36,6 +37,8 @@ export interface FitRequestBody {
 	period_filter: { log_period_min: number | null; log_period_max: number | null };
 	fundamentalise: boolean;
 	fixed_slope: number | null;
+	/** Absent from requests stored before the adopted slope's error was asked for. */
+	fixed_slope_error?: number | null;
 	clipping: { sigma: number; max_iterations: number } | null;
 	extinction_law: string | null;
 	r_v: number | null;
@@ -53,6 +56,7 @@ const TEXT_KEYS = [
 	'logPeriodMin',
 	'logPeriodMax',
 	'fixedSlope',
+	'fixedSlopeError',
 	'clipSigma',
 	'clipIterations',
 	'extinctionLaw',
@@ -84,6 +88,7 @@ export function valuesFromRequest(request: FitRequestBody): FitFormValues {
 		logPeriodMax: show(request.period_filter.log_period_max),
 		fundamentalise: request.fundamentalise,
 		fixedSlope: show(request.fixed_slope),
+		fixedSlopeError: show(request.fixed_slope_error),
 		clipping: request.clipping !== null,
 		clipSigma: show(request.clipping?.sigma ?? 3),
 		clipIterations: show(request.clipping?.max_iterations ?? 10),
@@ -107,6 +112,7 @@ export function defaultValues(revision: string, band: string, population: string
 		logPeriodMax: '',
 		fundamentalise: false,
 		fixedSlope: '',
+		fixedSlopeError: '',
 		clipping: false,
 		clipSigma: '3',
 		clipIterations: '10',
@@ -149,6 +155,9 @@ export function fitRequestFromValues(
 	const max = number('logPeriodMax');
 	if (min !== null && max !== null && min >= max) errors.logPeriodMax = 'Must be above the lower limit.';
 	const fixedSlope = number('fixedSlope');
+	const fixedSlopeError = number('fixedSlopeError');
+	if (fixedSlopeError !== null && fixedSlopeError < 0) errors.fixedSlopeError = 'Must not be negative.';
+	if (fixedSlopeError !== null && fixedSlope === null) errors.fixedSlopeError = 'Give the fixed slope it belongs to.';
 	const sigma = values.clipping ? number('clipSigma', true) : null;
 	const iterations = values.clipping ? number('clipIterations', true) : null;
 	if (sigma !== null && sigma <= 0) errors.clipSigma = 'Must be positive.';
@@ -182,6 +191,7 @@ export function fitRequestFromValues(
 			period_filter: { log_period_min: min, log_period_max: max },
 			fundamentalise: values.fundamentalise,
 			fixed_slope: fixedSlope,
+			fixed_slope_error: fixedSlopeError,
 			clipping: values.clipping ? { sigma: sigma!, max_iterations: iterations! } : null,
 			extinction_law: values.extinctionLaw || null,
 			r_v: rV,

@@ -305,6 +305,13 @@ async function seed(
 		'parallax'
 	);
 	await relation(
+		'kestrel-lantern-weighted-w-vi',
+		'Lantern Cloud W_VI, weighted fit with its error budget (invented)',
+		'W_VI',
+		'classical_fundamental',
+		'geometric_host'
+	);
+	await relation(
 		'kestrel-lantern-w-vir-w-jk',
 		'Lantern Cloud W Virginis stars, W_JK (invented)',
 		'W_JK',
@@ -402,6 +409,29 @@ async function seed(
 		submit: false
 	});
 	await withdrawProposal(fork(), curator, withdrawn.id);
+
+	// kestrel-lantern-weighted-w-vi: a weighted fit without clipping, whose stated errors are too small for the
+	// scatter: frozen with its χ²/dof verdict, its covariance scaled, and the Lantern Cloud distance as a shared
+	// systematic; a fixed-slope proposal waits for review with the same warning and the slope's error as a term.
+	await approved(
+		'kestrel-lantern-weighted-w-vi',
+		await lanternFit(2, 'W_VI', 'classical_fundamental', { method: 'wls', clipping: null }),
+		'Weighted fit with its error budget',
+		'Weighted least squares without clipping on the invented DR2. χ²/dof is far above 1, so the covariance is ' +
+			'scaled by it; the Lantern Cloud distance (18.48 ± 0.03, invented) is frozen as a shared systematic.'
+	);
+	await createProposal(fork(), curator, 'kestrel-lantern-weighted-w-vi', {
+		fit: await lanternFit(2, 'W_VI', 'classical_fundamental', {
+			method: 'wls',
+			clipping: null,
+			fixed_slope: -3.3,
+			fixed_slope_error: 0.05
+		}),
+		title: 'Adopt a fixed slope',
+		rationale: 'Holds the slope at an invented −3.30 ± 0.05 mag/dex; its error becomes a systematic of the zero point.',
+		embargoUntil: null,
+		submit: true
+	});
 
 	// kestrel-lantern-overtone-w-vi: one embargoed version and a draft.
 	const embargo = new Date(Date.now() + 180 * 24 * 3600 * 1000);

@@ -34,8 +34,22 @@ describe('fit requests', () => {
 			parallaxOffset: null,
 			bootstrap: null,
 			weightedCovariance: 'absolute',
-			assumedIntrinsicScatter: null
+			assumedIntrinsicScatter: null,
+			fixedSlopeError: null,
+			wesenheitRatio: null
 		});
+	});
+
+	test('weighted least squares scales by χ²/dof above 1 unless `absolute` is asked for', () => {
+		// Common practice: a wls covariance that ignores excess scatter understates the errors.
+		expect(specFromRequest(request({ method: 'wls' })).weightedCovariance).toBe('reduced_chi_square_above_one');
+		expect(specFromRequest(request({ method: 'wls', weighted_covariance: 'absolute' })).weightedCovariance).toBe(
+			'absolute'
+		);
+		expect(() => request({ wesenheit_ratio: { value: 1.4, reason: '' } })).toThrow();
+		expect(
+			specFromRequest(request({ wesenheit_ratio: { value: 1.4, reason: 'CCM89, R_V = 3.1' } })).wesenheitRatio
+		).toEqual({ value: 1.4, reason: 'CCM89, R_V = 3.1' });
 	});
 
 	test.each([

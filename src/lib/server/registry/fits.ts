@@ -56,8 +56,11 @@ export function specFromRequest(request: FitRequest): RefitSpec {
 		rV: request.r_v,
 		parallaxOffset: request.parallax_offset,
 		bootstrap: request.bootstrap,
-		weightedCovariance: request.weighted_covariance,
-		assumedIntrinsicScatter: request.assumed_intrinsic_scatter
+		weightedCovariance:
+			request.weighted_covariance ?? (request.method === 'wls' ? 'reduced_chi_square_above_one' : 'absolute'),
+		assumedIntrinsicScatter: request.assumed_intrinsic_scatter,
+		fixedSlopeError: request.fixed_slope_error,
+		wesenheitRatio: request.wesenheit_ratio
 	};
 }
 

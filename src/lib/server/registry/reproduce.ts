@@ -1,6 +1,8 @@
 import type { EntityManager } from '@mikro-orm/postgresql';
 import {
 	CalibrationInputError,
+	getBand,
+	isBandId,
 	runRefit,
 	sealRelationVersion,
 	toCalibratorRows,
@@ -20,8 +22,9 @@ import { findVersion } from './versions';
 
 /**
  * Reproducing a frozen version: its recorded fit spec run again by the engine on the recorded
- * calibrator revision, the content rebuilt with the version's own identity (ref, approvers, date), and
- * the digest recomputed by the rule. Everything that differs is listed, leaf by leaf.
+ * calibrator revision, the content rebuilt with the version's own identity (ref, approvers, date) in the
+ * shape of the engine that froze it, and the digest recomputed by the rule. Everything that differs is
+ * listed, leaf by leaf.
  */
 export interface Difference {
 	/** Dotted path into the content, with [i] for array items. */
@@ -75,8 +78,20 @@ export function specFromFrozen(content: RelationVersionContent, fittedOffsetPrio
 			? { resamples: fit.bootstrap.resamples, seed: fit.bootstrap.seed, level: fit.bootstrap.level }
 			: null,
 		weightedCovariance: fit.weighted_covariance ?? 'absolute',
-		assumedIntrinsicScatter: fit.assumed_intrinsic_scatter
+		assumedIntrinsicScatter: fit.assumed_intrinsic_scatter,
+		fixedSlopeError: content.systematics?.terms.find((term) => term.id === 'fixed_slope')?.error ?? null,
+		wesenheitRatio: chosenWesenheitRatio(content)
 	};
+}
+
+/** A frozen R that differs from the catalogue's, so the rebuilt magnitudes are formed with it. */
+function chosenWesenheitRatio(content: RelationVersionContent): RefitSpec['wesenheitRatio'] {
+	const ratio = content.wesenheit_ratio ?? null;
+	if (ratio === null || !isBandId(content.band)) return null;
+	const band = getBand(content.band);
+	return band.kind === 'wesenheit' && band.ratio !== ratio
+		? { value: ratio, reason: `as frozen in ${content.ref}` }
+		: null;
 }
 
 /** Leaf-by-leaf differences between two JSON values. */
@@ -113,14 +128,19 @@ export function reproduceContent(
 	const result = runRefit(toCalibratorRows(rows), specFromFrozen(stored, fittedOffsetPrior));
 	const [slug] = stored.ref.split('@');
 	const rebuilt = sealRelationVersion(
-		versionContentFromRefit(result, {
-			slug,
-			version: stored.version,
-			magnitudeSystem: stored.magnitude_system,
-			calibratorSet: { ...stored.calibrator_set },
-			approvedBy: stored.approved_by.map((approver) => ({ ...approver })),
-			approvedAt: stored.approved_at
-		})
+		versionContentFromRefit(
+			result,
+			{
+				slug,
+				version: stored.version,
+				magnitudeSystem: stored.magnitude_system,
+				calibratorSet: { ...stored.calibrator_set },
+				approvedBy: stored.approved_by.map((approver) => ({ ...approver })),
+				approvedAt: stored.approved_at
+			},
+			// The content shape of the engine that froze it: a 1.x version is rebuilt without the keys 2.0 added.
+			stored.engine_version
+		)
 	);
 	const { digest: _stored, ...storedContent } = stored;
 	const { digest: recomputedDigest, ...rebuiltContent } = rebuilt;

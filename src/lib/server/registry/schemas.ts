@@ -1,5 +1,11 @@
 import { z } from 'zod';
-import { EXTINCTION_LAW_IDS, POPULATION_IDS, REFIT_METHODS, RELATION_FORMS } from '../../calibration/index';
+import {
+	EXTINCTION_LAW_IDS,
+	POPULATION_IDS,
+	REFIT_METHODS,
+	RELATION_FORMS,
+	WEIGHTED_COVARIANCE_SCALINGS
+} from '../../calibration/index';
 import { PROPOSAL_STATES } from '../../review/proposal-workflow';
 import { registerApiSchema } from '../api/schema-registry';
 import { ANCHOR_TYPES, RELATION_VISIBILITIES } from '../entities/relation.entity';
@@ -105,8 +111,19 @@ export const FitRequestSchema = registerApiSchema(
 			})
 			.nullable()
 			.default(null),
-		weighted_covariance: z.enum(['absolute', 'reduced_chi_square']).default('absolute'),
-		assumed_intrinsic_scatter: z.number().nonnegative().nullable().default(null)
+		/**
+		 * Null: the method's own rule (wls scales by χ²/dof when it exceeds 1; ml_scatter takes the errors as
+		 * they are, σ_int absorbing the excess). `absolute` keeps a wls covariance unscaled only when asked.
+		 */
+		weighted_covariance: z.enum(WEIGHTED_COVARIANCE_SCALINGS).nullable().default(null),
+		assumed_intrinsic_scatter: z.number().nonnegative().nullable().default(null),
+		/** 1σ error of `fixed_slope`, frozen as a systematic of the zero point. */
+		fixed_slope_error: z.number().nonnegative().nullable().default(null),
+		/** R of the Wesenheit band other than the catalogue's, with the reason (e.g. the law and R_V behind it). */
+		wesenheit_ratio: z
+			.strictObject({ value: z.number().positive(), reason: z.string().trim().min(1).max(500) })
+			.nullable()
+			.default(null)
 	}),
 	{
 		id: 'FitRequest',

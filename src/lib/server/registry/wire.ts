@@ -1,4 +1,4 @@
-import type { RefitResult } from '../../calibration/index';
+import { frozenSystematicTerm, type RefitResult } from '../../calibration/index';
 import type { AnalysisJobEntity } from '../entities/analysis-job.entity';
 import type { CalibratorRevisionEntity } from '../entities/calibrator-revision.entity';
 import type { CalibratorSetEntity } from '../entities/calibrator-set.entity';
@@ -121,6 +121,17 @@ export function fitResultToWire(result: RefitResult) {
 		degrees_of_freedom: result.degreesOfFreedom,
 		reduced_chi_square: result.reducedChiSquare,
 		systematics: result.systematics,
+		// Absent from results stored before engine 2.
+		calibration_systematics: result.calibrationSystematics?.map(frozenSystematicTerm) ?? null,
+		fit_quality: result.fitQuality
+			? {
+					reduced_chi_square: result.fitQuality.reducedChiSquare,
+					degrees_of_freedom: result.fitQuality.degreesOfFreedom,
+					covariance_scaled: result.fitQuality.covarianceScaled,
+					errors_too_small: result.fitQuality.errorsTooSmall
+				}
+			: null,
+		wesenheit_ratio: result.wesenheitRatio ?? null,
 		bootstrap: result.bootstrap,
 		warnings: result.warnings
 	};

@@ -10,6 +10,7 @@ import { hasRole, type Actor } from '../registry/actor';
 import { fitResultOf } from '../registry/fits';
 import { getProposal } from '../registry/proposals';
 import { proposalToWire } from '../registry/wire';
+import { fitCautions } from '../../components/calibrators/fit-cautions';
 
 /** Everything the proposal page shows, as plain data: the wire view plus what only the page needs. */
 
@@ -176,6 +177,20 @@ export async function proposalPage(em: EntityManager, actor: Actor, id: string, 
 			form: view.proposed.form
 		},
 		comparison: wire.comparison,
+		// The cautions the refit page showed the author, so the reviewer reads the same ones.
+		cautions: fitCautions({
+			nUsed: view.fit.nUsed,
+			nTotal: view.fit.nTotal,
+			validity: view.proposed.validity,
+			warnings: view.fit.warnings,
+			excluded: view.fit.excluded,
+			requested: {
+				logPeriodMin: view.fit.spec.periodFilter.logPeriodMin,
+				logPeriodMax: view.fit.spec.periodFilter.logPeriodMax,
+				fundamentalise: view.fit.spec.fundamentalise
+			}
+		}),
+		fitQuality: view.proposed.fit_quality ?? null,
 		predictions,
 		overlay: {
 			base: base ? lineOf(base) : null,
