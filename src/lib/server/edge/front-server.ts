@@ -1,6 +1,7 @@
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import { clientAddress, type AddressSource } from './client-address';
 import { corsHeaders, preflightHeaders } from './cors';
+import { bearerToken } from './credentials';
 import { isStorable, matchesIfNoneMatch, type ImmutableCache, type StoredAnswer } from './immutable-cache';
 import { rateLimitHeaders, type FixedWindowLimiter } from './rate-limit';
 
@@ -149,7 +150,7 @@ export function frontRequestHandler(options: FrontServerOptions) {
 		const cors = corsHeaders(method, pathname);
 		if (cors) for (const [name, value] of Object.entries(cors)) response.setHeader(name, value);
 
-		const anonymous = request.headers.authorization === undefined;
+		const anonymous = bearerToken(request.headers.authorization) === null;
 		if (limiter && anonymous && pathname.startsWith('/api/')) {
 			const decision = limiter.take(clientAddress(request, addressSource));
 			for (const [name, value] of Object.entries(rateLimitHeaders(limiter.policy, decision))) {
