@@ -2,6 +2,7 @@ import { error, redirect, type Handle } from '@sveltejs/kit';
 import { groupStandingFor } from '../accounts/group-lookup';
 import { authenticateToken } from '../accounts/token-service';
 import { problem } from '../api/problem';
+import { secureCookies } from '../config';
 import { bearerToken } from '../edge/credentials';
 import { logger } from '../logger';
 import { decideAccess, findAccessRule, formActionName, type Credentials } from './access-policy';
@@ -41,7 +42,7 @@ export const handleAuth: Handle = async ({ event, resolve }) => {
 	}
 
 	if (!cookieToken) {
-		event.cookies.delete(SESSION_COOKIE, { path: '/' });
+		event.cookies.delete(SESSION_COOKIE, { path: '/', secure: secureCookies() });
 		if (api) {
 			return problem(401, 'The session cookie is empty: sign in again, or send an API token.', {}, EMPTY_COOKIE_CHALLENGE);
 		}
