@@ -1,7 +1,7 @@
 import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { PROBLEM_CONTENT_TYPE, problem } from '$lib/server/api/problem';
-import { handleAuth, handleGuard } from '$lib/server/auth/request-hooks';
+import { handleAuth, handleCrossSiteWrites, handleGuard } from '$lib/server/auth/request-hooks';
 import { getConfig } from '$lib/server/config';
 import { closeOrm, getOrm, getReadOrm, usesReadReplica } from '$lib/server/db';
 import { handleCors } from '$lib/server/edge/cors-hook';
@@ -67,6 +67,7 @@ export const handle = sequence(
 	handleDb,
 	handleApiProblems,
 	handleAuth,
+	handleCrossSiteWrites,
 	handleGuard,
 	handleTheme
 );

@@ -2,8 +2,8 @@ import { error, redirect, type Handle } from '@sveltejs/kit';
 import { groupStandingFor } from '../accounts/group-lookup';
 import { authenticateToken } from '../accounts/token-service';
 import { problem } from '../api/problem';
-import { secureCookies } from '../config';
 import { bearerToken } from '../edge/credentials';
+import { crossSiteRefusal } from '../http/cross-site-writes';
 import { logger } from '../logger';
 import { decideAccess, findAccessRule, formActionName, type Credentials } from './access-policy';
 import { SESSION_COOKIE } from './lucia';
@@ -42,7 +42,7 @@ export const handleAuth: Handle = async ({ event, resolve }) => {
 	}
 
 	if (!cookieToken) {
-		event.cookies.delete(SESSION_COOKIE, { path: '/', secure: secureCookies() });
+		event.cookies.delete(SESSION_COOKIE, { path: '/', secure: event.url.protocol === 'https:' });
 		if (api) {
 			return problem(401, 'The session cookie is empty: sign in again, or send an API token.', {}, EMPTY_COOKIE_CHALLENGE);
 		}
@@ -61,6 +61,22 @@ export const handleAuth: Handle = async ({ event, resolve }) => {
 	event.locals.session = session;
 	event.locals.user = { id: user.id, email: user.email, displayName: user.displayName, roles: user.roles };
 	return resolve(event);
+};
+
+/**
+ * Refuses API writes that a session cookie signs in when they come from another origin (403
+ * problem+json naming why); see crossSiteRefusal for the rule. Token calls are unaffected.
+ */
+export const handleCrossSiteWrites: Handle = ({ event, resolve }) => {
+	const reason = crossSiteRefusal({
+		method: event.request.method,
+		pathname: event.url.pathname,
+		origin: event.request.headers.get('origin'),
+		fetchSite: event.request.headers.get('sec-fetch-site'),
+		siteOrigin: event.url.origin,
+		cookieAuthenticated: event.locals.session !== null && event.locals.apiToken === null
+	});
+	return reason ? problem(403, reason) : resolve(event);
 };
 
 /**
