@@ -5,6 +5,7 @@ import { handleAuth, handleCrossSiteWrites, handleGuard } from '$lib/server/auth
 import { getConfig } from '$lib/server/config';
 import { closeOrm, getOrm, getReadOrm, usesReadReplica } from '$lib/server/db';
 import { handleCors } from '$lib/server/edge/cors-hook';
+import { handleSecurityHeaders } from '$lib/server/http/security-headers-hook';
 import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
 import { handleTheme } from '$lib/server/theme';
@@ -63,6 +64,7 @@ const handleApiProblems: Handle = async ({ event, resolve }) => {
 
 export const handle = sequence(
 	handleRequestLog,
+	handleSecurityHeaders,
 	handleCors,
 	handleDb,
 	handleApiProblems,
