@@ -1,10 +1,11 @@
 import type { Handle, HandleServerError, ServerInit } from '@sveltejs/kit';
 import { sequence } from '@sveltejs/kit/hooks';
 import { PROBLEM_CONTENT_TYPE, problem } from '$lib/server/api/problem';
-import { handleAuth, handleGuard } from '$lib/server/auth/request-hooks';
+import { handleAuth, handleCrossSiteWrites, handleGuard } from '$lib/server/auth/request-hooks';
 import { getConfig } from '$lib/server/config';
 import { closeOrm, getOrm, getReadOrm, usesReadReplica } from '$lib/server/db';
 import { handleCors } from '$lib/server/edge/cors-hook';
+import { handleSecurityHeaders } from '$lib/server/http/security-headers-hook';
 import { getAppJobQueue, stopAppJobQueue } from '$lib/server/jobs/app-queue';
 import { logger } from '$lib/server/logger';
 import { handleTheme } from '$lib/server/theme';
@@ -64,11 +65,13 @@ const handleApiProblems: Handle = async ({ event, resolve }) => {
 
 export const handle = sequence(
 	handleRequestLog,
+	handleSecurityHeaders,
 	handleCors,
 	handleDb,
 	handleApiProblems,
 	handleAuth,
 	handleVisitorFormLimit,
+	handleCrossSiteWrites,
 	handleGuard,
 	handleTheme
 );

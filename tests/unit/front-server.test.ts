@@ -163,6 +163,32 @@ describe('front server', () => {
 		expect((await fetch(limitedBase + '/relations')).status).toBe(200);
 	});
 
+	test.each([
+		['an empty Authorization header', ''],
+		['a bare Bearer', 'Bearer '],
+		['another scheme', 'Basic dXNlcjpwYXNz']
+	])('%s is counted against the anonymous limit', async (_label, authorization) => {
+		const counted = createFrontServer({
+			app: standInApp,
+			cache: new ImmutableCache({ maxBytes: 0 }),
+			limiter: new FixedWindowLimiter({ name: 'anonymous', limit: 1, windowSeconds: 60 }),
+			addressSource: { header: '', xffDepth: 1 }
+		});
+		const origin = await listen(counted);
+		try {
+			const statuses = [];
+			for (let i = 0; i < 2; i++) {
+				const response = await fetch(`${origin}/api/v1/pins/private@2`, { headers: { authorization } });
+				await response.arrayBuffer();
+				statuses.push(response.status);
+			}
+			expect(statuses).toEqual([200, 429]);
+		} finally {
+			counted.closeAllConnections();
+			await new Promise((resolve) => counted.close(resolve));
+		}
+	});
+
 	test('writes what it answers itself to the request log, without the query string; the app logs the rest', async () => {
 		const edgeLog: EdgeLogEntry[] = [];
 		const logged = createFrontServer({

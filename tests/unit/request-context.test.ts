@@ -5,9 +5,11 @@ describe('the way back after signing in', () => {
 	test.each([
 		['/account', '/account'],
 		['/groups/kestrel?tab=members', '/groups/kestrel?tab=members'],
-		['//evil.example/', '/account'],
-		['/\\evil.example', '/account'],
-		['https://evil.example/', '/account'],
+		['//evil.example/', '/'],
+		['/\\evil.example', '/'],
+		['/\t/evil.example', '/'],
+		['/%2F/evil.example', '/'],
+		['https://evil.example/', '/'],
 		['', '/account'],
 		[null, '/account']
 	])('%j leads to %j', (next, expected) => {

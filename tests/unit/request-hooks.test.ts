@@ -23,7 +23,11 @@ function fakeEvent(url: string, routeId: string, headers: Record<string, string>
 		params: {},
 		request: new Request(url, { headers }),
 		locals: { em: untouchable },
-		cookies: { get: (name: string) => (name === 'candlebook_session' ? cookie : undefined), set: () => {} },
+		cookies: {
+			get: (name: string) => (name === 'candlebook_session' ? cookie : undefined),
+			set: () => {},
+			delete: () => {}
+		},
 		getClientAddress: () => '127.0.0.1'
 	} as unknown as RequestEvent;
 }
@@ -58,5 +62,37 @@ describe('anonymous requests do no database work', () => {
 		const event = fakeEvent('http://127.0.0.1/', '/', { authorization: 'Bearer cbk_x' });
 		const response = await handleAuth({ event, resolve: ok });
 		expect(await response.text()).toBe('ok');
+	});
+});
+
+describe('credentials that are present but empty or malformed are bad credentials, not anonymity', () => {
+	const run = (event: RequestEvent) => handleAuth({ event, resolve: (e) => handleGuard({ event: e, resolve: ok }) });
+
+	test.each([
+		['an empty Authorization header', ''],
+		['a bare Bearer', 'Bearer '],
+		['Bearer without a space', 'Bearer'],
+		['another scheme', 'Basic dXNlcjpwYXNz'],
+		['a bearer value that is no Candlebook token', 'Bearer alice']
+	])('%s on a public API route is refused 401 without a database', async (_label, authorization) => {
+		const event = fakeEvent('http://127.0.0.1/api/v1/relations', '/api/v1/relations', { authorization });
+		const response = await run(event);
+		expect(response.status).toBe(401);
+		expect(response.headers.get('content-type')).toContain('application/problem+json');
+		expect(event.locals.user).toBeNull();
+	});
+
+	test('an empty session cookie on a public API route is refused 401 without a database', async () => {
+		const event = fakeEvent('http://127.0.0.1/api/v1/relations', '/api/v1/relations', {}, '');
+		const response = await run(event);
+		expect(response.status).toBe(401);
+		expect(response.headers.get('content-type')).toContain('application/problem+json');
+	});
+
+	test('an empty session cookie on a page is dropped without a database', async () => {
+		const event = fakeEvent('http://127.0.0.1/', '/', {}, '');
+		const response = await run(event);
+		expect(await response.text()).toBe('ok');
+		expect(event.locals.user).toBeNull();
 	});
 });

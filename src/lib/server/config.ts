@@ -88,10 +88,39 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
 	throw new ConfigError(result.error.issues.map((issue) => `${issue.path.join('.')}: ${issue.message}`));
 }
 
+/** Addresses only this machine can reach; `0.0.0.0` and `::` listen on every interface. */
+export function isLoopbackHost(host: string): boolean {
+	const bare = host.trim().toLowerCase().replace(/^\[(.*)\]$/, '$1');
+	return bare === 'localhost' || bare === '::1' || /^(::ffff:)?127(\.\d{1,3}){3}$/.test(bare);
+}
+
+/**
+ * Why the server must not start, or null: on a HOST other machines can reach, ORIGIN is required,
+ * because mailed links and Secure cookies are built from it and never from a request's Host header.
+ */
+export function publicOriginProblem(env: Record<string, string | undefined>, defaultHost: string): string | null {
+	const host = env.HOST || defaultHost;
+	if (env.ORIGIN || isLoopbackHost(host)) return null;
+	return (
+		`ORIGIN is required when HOST (${host}) is not a loopback address: set it to the address readers use, ` +
+		`e.g. ORIGIN=https://candlebook.example.org (mailed links and Secure cookies are built from it).`
+	);
+}
+
 let cached: AppConfig | undefined;
 
 /** The configuration, read and validated once per process. */
 export function getConfig(): AppConfig {
 	cached ??= parseConfig(process.env);
 	return cached;
+}
+
+/** Where links in mail point: ORIGIN, or the loopback address a local server listens on. */
+export function publicOrigin(): string {
+	return getConfig().ORIGIN ?? `http://127.0.0.1:${process.env.PORT ?? 3000}`;
+}
+
+/** Whether cookies must be Secure: whenever the public origin is https. */
+export function secureCookies(): boolean {
+	return publicOrigin().startsWith('https:');
 }

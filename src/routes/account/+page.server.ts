@@ -17,6 +17,7 @@ import { requireUser } from '$lib/server/auth/guards';
 import { auditContext } from '$lib/server/auth/request-context';
 import { appLucia } from '$lib/server/auth/request-lucia';
 import { clearSessionCookie } from '$lib/server/auth/session';
+import { publicOrigin } from '$lib/server/config';
 import { Session, User } from '$lib/server/entities/index';
 import { formErrors, textFields } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
@@ -67,7 +68,7 @@ export const actions: Actions = {
 		const parsed = z.object({ email: EmailSchema }).safeParse(fields);
 		if (!parsed.success) return fail(400, { section: 'email', values: fields, errors: formErrors(parsed.error) });
 		try {
-			await requestEmailChange(event.locals.em, user.id, parsed.data.email, event.url.origin, auditContext(event));
+			await requestEmailChange(event.locals.em, user.id, parsed.data.email, publicOrigin(), auditContext(event));
 		} catch (cause) {
 			if (cause instanceof AccountError) {
 				return fail(400, { section: 'email', values: fields, errors: { email: [cause.message] } });

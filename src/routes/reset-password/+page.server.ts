@@ -3,6 +3,7 @@ import { z } from 'zod';
 import { requestPasswordReset } from '$lib/server/accounts/account-service';
 import { EmailSchema } from '$lib/server/accounts/schemas';
 import { auditContext } from '$lib/server/auth/request-context';
+import { publicOrigin } from '$lib/server/config';
 import { formErrors, textFields, type FormErrors } from '$lib/server/forms';
 import { logger } from '$lib/server/logger';
 import type { Actions } from './$types';
@@ -17,7 +18,7 @@ export const actions: Actions = {
 		const { delivery } = await requestPasswordReset(
 			event.locals.em,
 			parsed.data.email,
-			event.url.origin,
+			publicOrigin(),
 			auditContext(event)
 		);
 		// Not awaited: answering only after the mail left would reveal that the account exists.

@@ -1,4 +1,6 @@
 import { redirect } from '@sveltejs/kit';
+import { secureCookies } from '$lib/server/config';
+import { sitePath } from '$lib/server/http/safe-redirect';
 import { parseTheme, THEME_COOKIE, THEME_COOKIE_MAX_AGE } from '$lib/theme';
 import type { RequestHandler } from './$types';
 
@@ -6,8 +8,13 @@ import type { RequestHandler } from './$types';
 export const POST: RequestHandler = async ({ request, cookies }) => {
 	const form = await request.formData().catch(() => new FormData());
 	const theme = parseTheme(String(form.get('theme') ?? ''));
-	cookies.set(THEME_COOKIE, theme, { path: '/', maxAge: THEME_COOKIE_MAX_AGE, httpOnly: false, sameSite: 'lax' });
-	const next = String(form.get('next') ?? '/');
-	// Only a path on this site: never an open redirect.
-	redirect(303, next.startsWith('/') && !next.startsWith('//') ? next : '/');
+	cookies.set(THEME_COOKIE, theme, {
+		path: '/',
+		maxAge: THEME_COOKIE_MAX_AGE,
+		httpOnly: false,
+		sameSite: 'lax',
+		secure: secureCookies()
+	});
+	const next = form.get('next');
+	redirect(303, sitePath(typeof next === 'string' ? next : null));
 };

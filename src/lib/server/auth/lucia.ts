@@ -1,14 +1,9 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { Lucia, TimeSpan } from 'lucia';
-import { getConfig } from '../config';
+import { getConfig, secureCookies } from '../config';
 import { MikroOrmAdapter, type SessionAttributes, type UserAttributes } from './mikro-orm-adapter';
 
 export const SESSION_COOKIE = 'candlebook_session';
-
-/** Cookies are Secure whenever the public origin is https; plain http is only for loopback use. */
-function secureCookies(): boolean {
-	return !(getConfig().ORIGIN ?? 'http://127.0.0.1').startsWith('http://');
-}
 
 export function createLucia(orm: MikroORM) {
 	return new Lucia(new MikroOrmAdapter(() => orm.em.fork()), {

@@ -1,5 +1,6 @@
 import type { RequestEvent } from '@sveltejs/kit';
 import type { AuditContext } from '../accounts/audit';
+import { sitePath } from '../http/safe-redirect';
 
 /** Who did it and from where, for the audit log. */
 export function auditContext(event: Pick<RequestEvent, 'locals' | 'getClientAddress'>): AuditContext {
@@ -14,8 +15,7 @@ export function clientAddress(event: Pick<RequestEvent, 'getClientAddress'>): st
 	}
 }
 
-/** A `next` target that stays on this site (a path, never `//host` or a full URL). */
+/** A `next` target that stays on this site: `fallback` when none was given, `/` when it leads elsewhere. */
 export function safeNext(value: string | null | undefined, fallback = '/account'): string {
-	if (!value || !value.startsWith('/') || value.startsWith('//') || value.startsWith('/\\')) return fallback;
-	return value;
+	return sitePath(value, fallback);
 }

@@ -1,4 +1,5 @@
 import type { Handle } from '@sveltejs/kit';
+import { withHeaders } from '../http/response-headers';
 import { corsHeaders, preflightHeaders } from './cors';
 
 /**
@@ -13,13 +14,5 @@ export const handleCors: Handle = async ({ event, resolve }) => {
 	const response = await resolve(event);
 	const headers = corsHeaders(method, pathname);
 	if (!headers) return response;
-	try {
-		for (const [name, value] of Object.entries(headers)) response.headers.set(name, value);
-		return response;
-	} catch {
-		// Headers of a fetched Response are immutable; answer a copy.
-		const copy = new Response(response.body, response);
-		for (const [name, value] of Object.entries(headers)) copy.headers.set(name, value);
-		return copy;
-	}
+	return withHeaders(response, headers);
 };

@@ -1,6 +1,8 @@
 import { createServer, type IncomingMessage, type Server, type ServerResponse } from 'node:http';
 import { clientAddress, type AddressSource } from './client-address';
 import { corsHeaders, preflightHeaders } from './cors';
+import { NON_PAGE_CSP, SECURITY_HEADERS } from '../http/security-headers';
+import { bearerToken } from './credentials';
 import { isStorable, matchesIfNoneMatch, type ImmutableCache, type StoredAnswer } from './immutable-cache';
 import { rateLimitHeaders, type FixedWindowLimiter } from './rate-limit';
 
@@ -140,6 +142,10 @@ export function frontRequestHandler(options: FrontServerOptions) {
 				answeredBy
 			});
 
+		// The app sets these too; set here they also cover what this server answers itself.
+		for (const [name, value] of Object.entries(SECURITY_HEADERS)) response.setHeader(name, value);
+		response.setHeader('content-security-policy', NON_PAGE_CSP);
+
 		const preflight = preflightHeaders(method, pathname, request.headers['access-control-request-method']);
 		if (preflight) {
 			response.writeHead(204, preflight).end();
@@ -149,7 +155,7 @@ export function frontRequestHandler(options: FrontServerOptions) {
 		const cors = corsHeaders(method, pathname);
 		if (cors) for (const [name, value] of Object.entries(cors)) response.setHeader(name, value);
 
-		const anonymous = request.headers.authorization === undefined;
+		const anonymous = bearerToken(request.headers.authorization) === null;
 		if (limiter && anonymous && pathname.startsWith('/api/')) {
 			const decision = limiter.take(clientAddress(request, addressSource));
 			for (const [name, value] of Object.entries(rateLimitHeaders(limiter.policy, decision))) {

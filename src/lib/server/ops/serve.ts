@@ -8,7 +8,7 @@
 import { existsSync } from 'node:fs';
 import { join } from 'node:path';
 import { pathToFileURL } from 'node:url';
-import { getConfig } from '../config';
+import { getConfig, publicOriginProblem } from '../config';
 import { addressSourceFrom } from '../edge/client-address';
 import { createFrontServer, type AppHandler } from '../edge/front-server';
 import { ImmutableCache } from '../edge/immutable-cache';
@@ -16,6 +16,16 @@ import { FixedWindowLimiter } from '../edge/rate-limit';
 import { logger } from '../logger';
 import { PROJECT_ROOT } from './project-paths';
 
+const host = process.env.HOST ?? '0.0.0.0';
+const port = Number(process.env.PORT ?? 3000);
+const originProblem = publicOriginProblem(process.env, host);
+if (originProblem) {
+	console.error(`[candlebook] ${originProblem}`);
+	process.exit(1);
+}
+// adapter-node takes event.url from ORIGIN when set and otherwise from the request's Host header,
+// which any client can write; on loopback the listening address is the origin.
+process.env.ORIGIN ??= `http://${host.includes(':') ? `[${host}]` : host}:${port}`;
 const config = getConfig();
 const handlerFile = join(PROJECT_ROOT, 'build', 'handler.js');
 if (!existsSync(handlerFile)) {
@@ -34,8 +44,6 @@ const server = createFrontServer({
 	log: (entry) => logger.info(entry, 'request')
 });
 
-const host = process.env.HOST ?? '0.0.0.0';
-const port = Number(process.env.PORT ?? 3000);
 server.listen(port, host, () => {
 	logger.info(
 		{

@@ -15,6 +15,13 @@ import { migrateDatabase } from './migrate';
 import { PROJECT_ROOT } from './project-paths';
 import { serverEnvironment } from './server-environment';
 import { onShutdown } from './shutdown';
+import { publicOriginProblem } from '../config';
+
+const originProblem = publicOriginProblem(process.env, '127.0.0.1');
+if (originProblem) {
+	console.error(`[candlebook] ${originProblem}`);
+	process.exit(1);
+}
 
 const database = await openLocalDatabase();
 const running: { server?: ReturnType<typeof spawn>; mail?: MailCatcher; objects?: LocalObjectStore } = {};

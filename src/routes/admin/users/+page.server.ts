@@ -6,6 +6,7 @@ import { listGroups } from '$lib/server/accounts/group-service';
 import { DisplayNameSchema, EmailSchema, GroupSlugSchema, RolesSchema } from '$lib/server/accounts/schemas';
 import { requireRole } from '$lib/server/auth/guards';
 import { auditContext } from '$lib/server/auth/request-context';
+import { publicOrigin } from '$lib/server/config';
 import { GroupMembership, User } from '$lib/server/entities/index';
 import { formErrors, textFields } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
@@ -57,7 +58,7 @@ export const actions: Actions = {
 					...person,
 					groups: slugs.map((slug) => ({ slug, standing: managerOf.includes(slug) ? 'manager' : 'member' }))
 				},
-				event.url.origin,
+				publicOrigin(),
 				auditContext(event)
 			);
 		} catch (cause) {
@@ -89,7 +90,7 @@ export const actions: Actions = {
 		const user = await event.locals.em.findOne(User, { id: parsed.data.userId });
 		if (!user) error(404, 'No such person.');
 		try {
-			await sendInvitation(event.locals.em, user, event.url.origin, auditContext(event));
+			await sendInvitation(event.locals.em, user, publicOrigin(), auditContext(event));
 		} catch (cause) {
 			if (cause instanceof AccountError) return fail(400, { values: {}, errors: { userId: [cause.message] } });
 			throw cause;

@@ -1,0 +1,11 @@
+/** Sets headers on a response, or on a copy when its headers are immutable (a fetched Response). */
+export function withHeaders(response: Response, headers: Record<string, string>): Response {
+	try {
+		for (const [name, value] of Object.entries(headers)) response.headers.set(name, value);
+		return response;
+	} catch {
+		const copy = new Response(response.body, response);
+		for (const [name, value] of Object.entries(headers)) copy.headers.set(name, value);
+		return copy;
+	}
+}
