@@ -66,7 +66,9 @@ const fitSpecSchema = z.strictObject({
 	/** Whether first-overtone periods were fundamentalised before fitting. */
 	fundamentalised: z.boolean(),
 	/** σ_int held fixed inside a parallax-space fit; null for the other methods. */
-	assumed_intrinsic_scatter: nonNegative.nullable()
+	assumed_intrinsic_scatter: nonNegative.nullable(),
+	/** How ml_scatter estimated σ_int (null for the other methods). Engine ≥ 2 only: engine 1 always used ML. */
+	intrinsic_scatter_estimator: z.enum(['ml', 'reml']).nullable().optional()
 });
 
 /** Shared error terms of the calibration (engine ≥ 2); see systematics.ts. */
@@ -157,6 +159,14 @@ export const relationVersionContentSchema = z
 			if (!recordsBudget && content[key] !== undefined) {
 				issue([key], `is not part of versions frozen by engine ${content.engine_version}`);
 			}
+		}
+		if (recordsBudget !== (content.fit.intrinsic_scatter_estimator !== undefined)) {
+			issue(
+				['fit', 'intrinsic_scatter_estimator'],
+				recordsBudget
+					? 'is required from engine 2 on'
+					: `is not part of versions frozen by engine ${content.engine_version}`
+			);
 		}
 		const withGamma = content.form === 'period_luminosity_metallicity';
 		content.systematics?.terms.forEach((term, i) => {

@@ -117,9 +117,33 @@ describe('refit', () => {
 		expect(Object.keys(old)).not.toContain('systematics');
 		expect(Object.keys(old)).not.toContain('fit_quality');
 		expect(Object.keys(old)).not.toContain('wesenheit_ratio');
+		expect(Object.keys(old.fit)).not.toContain('intrinsic_scatter_estimator');
+		expect(current.fit.intrinsic_scatter_estimator).toBeNull();
 		const { systematics: _s, fit_quality: _q, wesenheit_ratio: _r, ...rest } = current;
-		expect({ ...rest, engine_version: '1.0.0' }).toEqual(old);
+		const { intrinsic_scatter_estimator: _e, ...fit } = current.fit;
+		expect({ ...rest, fit, engine_version: '1.0.0' }).toEqual(old);
 		console.log(`engine shapes from one refit: ${(performance.now() - started).toFixed(1)} ms`);
+	});
+
+	test('an ml_scatter version records which estimator gave σ_int; REML lands above ML on the same stars', () => {
+		const fitWith = (estimator: 'ml' | 'reml') =>
+			runRefit(inventedHostRows(), {
+				...BASE_SPEC,
+				method: 'ml_scatter',
+				clipping: null,
+				intrinsicScatterEstimator: estimator
+			});
+		const reml = versionContentFromRefit(fitWith('reml'), IDENTITY);
+		const ml = versionContentFromRefit(fitWith('ml'), IDENTITY);
+		expect(reml.fit.intrinsic_scatter_estimator).toBe('reml');
+		expect(ml.fit.intrinsic_scatter_estimator).toBe('ml');
+		// REML removes the (n − p)/n shrinkage of ML (Patterson & Thompson 1971), so on one sample it is larger.
+		expect(reml.intrinsic_scatter).toBeGreaterThan(ml.intrinsic_scatter);
+		expect(relationVersionDigest(reml)).not.toBe(relationVersionDigest(ml));
+		// Engine 1 knew only ML and recorded no estimator.
+		expect(Object.keys(versionContentFromRefit(fitWith('ml'), IDENTITY, '1.0.0').fit)).not.toContain(
+			'intrinsic_scatter_estimator'
+		);
 	});
 
 	test('WLS with errors far too small: covariance scaled, fit_quality and a warning with the numbers', () => {

@@ -5,6 +5,7 @@
  */
 import { prepareCalibrators, type AnchorKind, type PreparedCalibrators } from './calibrators';
 import { fitLinearRelation } from './fit/index';
+import type { IntrinsicScatterEstimator } from './fit/model';
 import {
 	REFIT_METHODS,
 	type RefitMethod,
@@ -62,6 +63,8 @@ export interface RefitSpec {
 	weightedCovariance: WeightedCovarianceScaling;
 	/** σ_int held fixed inside the parallax-space fit (it does not estimate σ_int); null otherwise. */
 	assumedIntrinsicScatter: number | null;
+	/** How ml_scatter estimates σ_int; absent or null means `ml`, the only estimator of engine 1. */
+	intrinsicScatterEstimator?: IntrinsicScatterEstimator | null;
 	/** 1σ error of an adopted fixed slope: a systematic shared by every star. */
 	fixedSlopeError?: number | null;
 	/** R of the Wesenheit band when the curator chose one other than the catalogue's, with the reason. */
@@ -321,7 +324,8 @@ function fitRefit(rows: readonly CalibratorRow[], spec: RefitSpec): FittedRefit 
 		fixedZeroPoint: spec.fixedZeroPoint,
 		clipping: spec.clipping,
 		bootstrap: spec.bootstrap,
-		weightedCovariance: spec.weightedCovariance
+		weightedCovariance: spec.weightedCovariance,
+		intrinsicScatterEstimator: spec.intrinsicScatterEstimator ?? 'ml'
 	});
 	const pointByStar = new Map(prepared.points.map((point) => [point.star, point]));
 	const scatter = intrinsicScatterOf(spec, fit, new Map(prepared.points.map((point) => [point.star, point.absMagErr])));
@@ -469,6 +473,11 @@ export function versionContentFromRefit(
 	const quality = result.fitQuality ?? fitQualityOf(result.reducedChiSquare, result.degreesOfFreedom, false);
 	return parseRelationVersionContent({
 		...base,
+		fit: {
+			...base.fit,
+			intrinsic_scatter_estimator:
+				result.spec.method === 'ml_scatter' ? (result.spec.intrinsicScatterEstimator ?? 'ml') : null
+		},
 		systematics: { terms: (result.calibrationSystematics ?? []).map(frozenSystematicTerm) },
 		fit_quality: {
 			reduced_chi_square: quality.reducedChiSquare,

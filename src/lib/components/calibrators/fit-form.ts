@@ -8,6 +8,8 @@ export interface FitFormValues {
 	band: string;
 	population: string;
 	method: string;
+	/** `reml` or `ml`; used by ml_scatter only. */
+	scatterEstimator: string;
 	logPeriodMin: string;
 	logPeriodMax: string;
 	fundamentalise: boolean;
@@ -44,6 +46,8 @@ export interface FitRequestBody {
 	r_v: number | null;
 	parallax_offset: { mode: 'given' | 'fitted'; value: number; error: number } | null;
 	bootstrap: { resamples: number; seed: number; level: number } | null;
+	/** Absent from requests stored before REML was offered (they used ML). */
+	intrinsic_scatter_estimator?: 'ml' | 'reml' | null;
 }
 
 export type FitFormErrors = Partial<Record<keyof FitFormValues, string>>;
@@ -53,6 +57,7 @@ const TEXT_KEYS = [
 	'band',
 	'population',
 	'method',
+	'scatterEstimator',
 	'logPeriodMin',
 	'logPeriodMax',
 	'fixedSlope',
@@ -84,6 +89,7 @@ export function valuesFromRequest(request: FitRequestBody): FitFormValues {
 		band: request.band,
 		population: request.population,
 		method: request.method,
+		scatterEstimator: request.intrinsic_scatter_estimator ?? (request.method === 'ml_scatter' ? 'ml' : 'reml'),
 		logPeriodMin: show(request.period_filter.log_period_min),
 		logPeriodMax: show(request.period_filter.log_period_max),
 		fundamentalise: request.fundamentalise,
@@ -108,6 +114,7 @@ export function defaultValues(revision: string, band: string, population: string
 		band,
 		population,
 		method: anchor === 'parallax' ? 'parallax_space' : 'wls',
+		scatterEstimator: 'reml',
 		logPeriodMin: '',
 		logPeriodMax: '',
 		fundamentalise: false,
@@ -151,6 +158,9 @@ export function fitRequestFromValues(
 	if (!values.band) errors.band = 'Choose a band.';
 	if (!values.population) errors.population = 'Choose a population.';
 	if (!values.method) errors.method = 'Choose a method.';
+	const usesEstimator = values.method === 'ml_scatter';
+	if (usesEstimator && values.scatterEstimator !== 'ml' && values.scatterEstimator !== 'reml')
+		errors.scatterEstimator = 'Choose REML or ML.';
 	const min = number('logPeriodMin');
 	const max = number('logPeriodMax');
 	if (min !== null && max !== null && min >= max) errors.logPeriodMax = 'Must be above the lower limit.';
@@ -196,7 +206,8 @@ export function fitRequestFromValues(
 			extinction_law: values.extinctionLaw || null,
 			r_v: rV,
 			parallax_offset: parallaxOffset,
-			bootstrap: resamples !== null ? { resamples, seed: seed!, level: 0.68 } : null
+			bootstrap: resamples !== null ? { resamples, seed: seed!, level: 0.68 } : null,
+			intrinsic_scatter_estimator: usesEstimator ? (values.scatterEstimator as 'ml' | 'reml') : null
 		}
 	};
 }

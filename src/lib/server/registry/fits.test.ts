@@ -35,9 +35,12 @@ describe('fit requests', () => {
 			bootstrap: null,
 			weightedCovariance: 'absolute',
 			assumedIntrinsicScatter: null,
+			intrinsicScatterEstimator: 'reml',
 			fixedSlopeError: null,
 			wesenheitRatio: null
 		});
+		expect(specFromRequest(request({ intrinsic_scatter_estimator: 'ml' })).intrinsicScatterEstimator).toBe('ml');
+		expect(specFromRequest(request({ method: 'wls' })).intrinsicScatterEstimator).toBeNull();
 	});
 
 	test('weighted least squares scales by χ²/dof above 1 unless `absolute` is asked for', () => {

@@ -59,6 +59,7 @@ export function specFromRequest(request: FitRequest): RefitSpec {
 		weightedCovariance:
 			request.weighted_covariance ?? (request.method === 'wls' ? 'reduced_chi_square_above_one' : 'absolute'),
 		assumedIntrinsicScatter: request.assumed_intrinsic_scatter,
+		intrinsicScatterEstimator: request.method === 'ml_scatter' ? (request.intrinsic_scatter_estimator ?? 'reml') : null,
 		fixedSlopeError: request.fixed_slope_error,
 		wesenheitRatio: request.wesenheit_ratio
 	};

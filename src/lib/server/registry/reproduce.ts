@@ -79,6 +79,8 @@ export function specFromFrozen(content: RelationVersionContent, fittedOffsetPrio
 			: null,
 		weightedCovariance: fit.weighted_covariance ?? 'absolute',
 		assumedIntrinsicScatter: fit.assumed_intrinsic_scatter,
+		// Engine 1 knew only the maximum-likelihood estimate.
+		intrinsicScatterEstimator: fit.intrinsic_scatter_estimator ?? 'ml',
 		fixedSlopeError: content.systematics?.terms.find((term) => term.id === 'fixed_slope')?.error ?? null,
 		wesenheitRatio: chosenWesenheitRatio(content)
 	};

@@ -117,6 +117,11 @@ export const FitRequestSchema = registerApiSchema(
 		 */
 		weighted_covariance: z.enum(WEIGHTED_COVARIANCE_SCALINGS).nullable().default(null),
 		assumed_intrinsic_scatter: z.number().nonnegative().nullable().default(null),
+		/**
+		 * How ml_scatter estimates σ_int. Null: `reml`, unbiased where `ml` is low by about (n − p)/n for few
+		 * calibrators.
+		 */
+		intrinsic_scatter_estimator: z.enum(['ml', 'reml']).nullable().default(null),
 		/** 1σ error of `fixed_slope`, frozen as a systematic of the zero point. */
 		fixed_slope_error: z.number().nonnegative().nullable().default(null),
 		/** R of the Wesenheit band other than the catalogue's, with the reason (e.g. the law and R_V behind it). */
