@@ -14,7 +14,7 @@ export interface CrawlWorld {
 	groups: string[];
 	relations: { slug: string; versions: number[] }[];
 	calibratorSets: { slug: string; revisions: number[] }[];
-	proposals: string[];
+	proposals: { id: string; relation: string }[];
 	jobs: string[];
 	uploads: { id: string; stars: string[] }[];
 	digests: string[];
@@ -71,7 +71,7 @@ function parameterValues(
 			return (set()?.revisions ?? []).map(String);
 		case 'proposals/id':
 		case 'review/id':
-			return world.proposals;
+			return world.proposals.map((p) => p.id);
 		case 'jobs/id':
 			return world.jobs;
 		case 'uploads/id':
@@ -133,7 +133,8 @@ function codeQueryVariants(world: CrawlWorld, route: string, params: Record<stri
 			return world.relations.map((r) => ['q', r.slug]);
 		case '/relations/[slug]/refit':
 			return [
-				...world.proposals.map((id) => ['proposal', id]),
+				// A proposal of another relation is refused before anything is read.
+				...world.proposals.filter((p) => p.relation === params.slug).map((p) => ['proposal', p.id]),
 				...world.jobs.map((id) => ['job', id]),
 				...world.calibratorSets.map((s) => ['set', `${s.slug}@${s.revisions.at(-1)}`])
 			];
@@ -141,7 +142,7 @@ function codeQueryVariants(world: CrawlWorld, route: string, params: Record<stri
 		case '/api/v1/calibrator-sets/[slug]/diff':
 			return pairs(set?.revisions ?? []).map(([from, to]) => ['from', String(from), 'to', String(to)]);
 		case '/admin/audit':
-			return [...world.proposals, ...world.jobs].map((id) => ['subject', id]);
+			return [...world.proposals.map((p) => p.id), ...world.jobs].map((id) => ['subject', id]);
 	}
 	return [];
 }

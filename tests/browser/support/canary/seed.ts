@@ -10,7 +10,8 @@ import type { CrawlWorld } from './routes';
 /**
  * The data the crawl looks for, made over the app's own write API: a public relation of a group with
  * a public version 1, an approved version 2 under embargo and a proposed version 3 (also embargoed);
- * a group-private calibrator set; a member's fit of it; a member's light-curve upload. Every text a
+ * a group-private calibrator set; a member's fit of it, approved as version 1 of a group-private
+ * relation; a member's light-curve upload. Every text a
  * reader outside the group must not see carries a `cnry-` string, and the fits are of invented
  * Cepheids drawn from deliberately unreal relations (zero points −16 to −10 mag, slopes −13 to −10),
  * so their coefficients occur nowhere else. Slugs and ids of public things are not canaries.
@@ -18,6 +19,7 @@ import type { CrawlWorld } from './routes';
 export const EMBARGO_UNTIL = new Date('2031-06-30T00:00:00Z');
 const GROUP = 'canary-keepers';
 const OTHER_GROUP = 'canary-neighbours';
+const PRIVATE_RELATION = 'canary-private-relation';
 const INSIDE: ReadonlySet<CallerName> = new Set<CallerName>(['group member', 'admin']);
 
 export interface CrawlCaller {
@@ -153,7 +155,7 @@ export interface CanaryWorld {
 	canaries: Canary[];
 	/** The numeric canaries, for the uniqueness checks. */
 	numbers: { label: string; value: number }[];
-	/** Plants the proposals (the embargoed version and the pending one); call after the baseline crawl. */
+	/** Plants the proposals and the versions they make; call after the baseline crawl. */
 	plant(): Promise<void>;
 }
 
@@ -290,6 +292,11 @@ export async function seedCanaryWorld(orm: MikroORM): Promise<CanaryWorld> {
 	expect(upload.status, JSON.stringify(upload.body)).toBe(201);
 	await waitForUpload(member, upload.body.id);
 
+	const privateRelationText = {
+		title: 'cnry-privrel-title-n5b',
+		description: 'cnry-privrel-description-g2y',
+		proposalTitle: 'cnry-privrel-proposal-u4e'
+	};
 	const embargoText = {
 		title: 'cnry-emb-title-k9d',
 		rationale: 'cnry-emb-rationale-t5x',
@@ -324,7 +331,7 @@ export async function seedCanaryWorld(orm: MikroORM): Promise<CanaryWorld> {
 			{ slug: decoySet, revisions: [1] },
 			{ slug: embargoSet, revisions: [1, 2] }
 		],
-		proposals: [firstProposal],
+		proposals: [{ id: firstProposal, relation }],
 		jobs: [decoyFit.job],
 		uploads: [],
 		digests: [firstDigest, decoyDigest, ...embargoSetDigests],
@@ -334,7 +341,7 @@ export async function seedCanaryWorld(orm: MikroORM): Promise<CanaryWorld> {
 		groups: baseline.groups,
 		relations: [{ slug: relation, versions: [1, 2] }],
 		calibratorSets: [...baseline.calibratorSets, { slug: privateSet, revisions: [1, 2] }],
-		proposals: [firstProposal],
+		proposals: [...baseline.proposals],
 		jobs: [decoyFit.job, embargoFit.job, pendingFit.job, privateFit.job],
 		uploads: [{ id: upload.body.id, stars: [lightCurve.star] }],
 		digests: [...baseline.digests, ...privateDigests],
@@ -361,9 +368,36 @@ export async function seedCanaryWorld(orm: MikroORM): Promise<CanaryWorld> {
 				embargo_until: EMBARGO_UNTIL.toISOString()
 			});
 			await comment(reviewer, pending, embargoText.pendingComment);
-			world.proposals.push(embargoed, pending);
+			world.proposals.push({ id: embargoed, relation }, { id: pending, relation });
 			world.digests.push(embargoedDigest);
 			canaries.push(textCanary('embargoed v2 digest', embargoedDigest.replace('sha256:', ''), INSIDE));
+
+			// A group-private relation whose only version is the member's fit of the private set.
+			const privateRelation = await api(member.token, 'POST', '/api/v1/relations', {
+				slug: PRIVATE_RELATION,
+				title: privateRelationText.title,
+				description: privateRelationText.description,
+				band: 'W_VI',
+				population: 'classical_fundamental',
+				anchor_type: 'geometric_host',
+				group: GROUP,
+				visibility: 'group',
+				required_approvals: 1
+			});
+			expect(privateRelation.status, JSON.stringify(privateRelation.body)).toBe(201);
+			const privateProposal = await propose(member, PRIVATE_RELATION, privateFit.job, {
+				title: privateRelationText.proposalTitle
+			});
+			const privateDigest = await approve(reviewer, privateProposal);
+			world.relations.push({ slug: PRIVATE_RELATION, versions: [1] });
+			world.proposals.push({ id: privateProposal, relation: PRIVATE_RELATION });
+			world.digests.push(privateDigest);
+			canaries.push(
+				...Object.entries(privateRelationText).map(([field, text]) =>
+					textCanary(`private relation ${field}`, text, INSIDE)
+				),
+				textCanary('private relation v1 digest', privateDigest.replace('sha256:', ''), INSIDE)
+			);
 		}
 	};
 }
