@@ -5,6 +5,32 @@ import { defaultValues, fitRequestFromValues, valuesFromRequest } from './fit-fo
 describe('fit form → fit request', () => {
 	const base = defaultValues('kestrel-set@3', 'W_VI', 'classical_fundamental', 'host');
 
+	test('a chosen Wesenheit R needs its reason; a fixed slope error needs its slope; both reach the request', () => {
+		const started = performance.now();
+		const missing = fitRequestFromValues({ ...base, wesenheitRatio: '1.387' }, 'host');
+		expect(missing).toEqual({ ok: false, errors: { wesenheitRatioReason: expect.stringContaining('Say why') } });
+		const lonely = fitRequestFromValues({ ...base, fixedSlopeError: '0.05' }, 'host');
+		expect(lonely).toEqual({ ok: false, errors: { fixedSlopeError: expect.stringContaining('fixed slope') } });
+		const built = fitRequestFromValues(
+			{
+				...base,
+				wesenheitRatio: '1.387',
+				wesenheitRatioReason: 'CCM89, R_V = 3.1',
+				fixedSlope: '-3.3',
+				fixedSlopeError: '0.05'
+			},
+			'host'
+		);
+		expect(built.ok && built.request).toMatchObject({
+			wesenheit_ratio: { value: 1.387, reason: 'CCM89, R_V = 3.1' },
+			fixed_slope: -3.3,
+			fixed_slope_error: 0.05
+		});
+		if (built.ok)
+			expect(valuesFromRequest(built.request)).toMatchObject({ wesenheitRatio: '1.387', fixedSlopeError: '0.05' });
+		console.log(`fit form systematics: ${(performance.now() - started).toFixed(1)} ms`);
+	});
+
 	test('a default form is a weighted fit of the whole revision', () => {
 		const built = fitRequestFromValues(base, 'host');
 		expect(built).toEqual({

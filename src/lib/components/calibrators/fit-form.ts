@@ -20,6 +20,9 @@ export interface FitFormValues {
 	clipIterations: string;
 	extinctionLaw: string;
 	rV: string;
+	/** R of a Wesenheit band other than the catalogue's, with the reason; empty for the catalogue's. */
+	wesenheitRatio: string;
+	wesenheitRatioReason: string;
 	parallaxOffsetMode: string;
 	parallaxOffset: string;
 	parallaxOffsetError: string;
@@ -45,6 +48,8 @@ export interface FitRequestBody {
 	extinction_law: string | null;
 	r_v: number | null;
 	parallax_offset: { mode: 'given' | 'fitted'; value: number; error: number } | null;
+	/** Absent from requests stored before a curator could choose R. */
+	wesenheit_ratio?: { value: number; reason: string } | null;
 	bootstrap: { resamples: number; seed: number; level: number } | null;
 	/** Absent from requests stored before REML was offered (they used ML). */
 	intrinsic_scatter_estimator?: 'ml' | 'reml' | null;
@@ -66,6 +71,8 @@ const TEXT_KEYS = [
 	'clipIterations',
 	'extinctionLaw',
 	'rV',
+	'wesenheitRatio',
+	'wesenheitRatioReason',
 	'parallaxOffsetMode',
 	'parallaxOffset',
 	'parallaxOffsetError',
@@ -100,6 +107,8 @@ export function valuesFromRequest(request: FitRequestBody): FitFormValues {
 		clipIterations: show(request.clipping?.max_iterations ?? 10),
 		extinctionLaw: request.extinction_law ?? '',
 		rV: show(request.r_v),
+		wesenheitRatio: show(request.wesenheit_ratio?.value),
+		wesenheitRatioReason: request.wesenheit_ratio?.reason ?? '',
 		parallaxOffsetMode: request.parallax_offset?.mode ?? '',
 		parallaxOffset: show(request.parallax_offset?.value),
 		parallaxOffsetError: show(request.parallax_offset?.error),
@@ -125,6 +134,8 @@ export function defaultValues(revision: string, band: string, population: string
 		clipIterations: '10',
 		extinctionLaw: '',
 		rV: '',
+		wesenheitRatio: '',
+		wesenheitRatioReason: '',
 		parallaxOffsetMode: '',
 		parallaxOffset: '',
 		parallaxOffsetError: '',
@@ -175,6 +186,10 @@ export function fitRequestFromValues(
 		errors.clipIterations = 'A whole number from 1 to 100.';
 	const rV = number('rV');
 	if (rV !== null && rV <= 0) errors.rV = 'Must be positive.';
+	const ratio = number('wesenheitRatio');
+	if (ratio !== null && ratio <= 0) errors.wesenheitRatio = 'Must be positive.';
+	if (ratio !== null && values.wesenheitRatioReason === '')
+		errors.wesenheitRatioReason = 'Say why this R (e.g. the law and R_V it comes from).';
 	let parallaxOffset: FitRequestBody['parallax_offset'] = null;
 	if (values.parallaxOffsetMode === 'given' || values.parallaxOffsetMode === 'fitted') {
 		const value = number('parallaxOffset', values.parallaxOffsetMode === 'given') ?? 0;
@@ -206,6 +221,7 @@ export function fitRequestFromValues(
 			extinction_law: values.extinctionLaw || null,
 			r_v: rV,
 			parallax_offset: parallaxOffset,
+			wesenheit_ratio: ratio === null ? null : { value: ratio, reason: values.wesenheitRatioReason },
 			bootstrap: resamples !== null ? { resamples, seed: seed!, level: 0.68 } : null,
 			intrinsic_scatter_estimator: usesEstimator ? (values.scatterEstimator as 'ml' | 'reml') : null
 		}
