@@ -38,6 +38,11 @@ test('POST /api/v1/hubble answers H0 with its error budget, and problem+json for
 	await expectMatchesOpenApi(request, bad, 'POST /api/v1/hubble');
 	const problem = await bad.json();
 	expect(problem.errors.map((error: { path: string }) => error.path)).toEqual(
-		expect.arrayContaining(['distance_mpc', 'velocity_km_s', 'velocity_frame'])
+		expect.arrayContaining(['distance_mpc', 'velocity_frame'])
 	);
+	const noVelocity = await request.post('/api/v1/hubble', {
+		data: { distance_mpc: 16.5, distance_mpc_err: 0.8, velocity_frame: 'cmb' }
+	});
+	expect(noVelocity.status()).toBe(422);
+	expect((await noVelocity.json()).errors.map((error: { path: string }) => error.path)).toContain('velocity_km_s');
 });
