@@ -18,7 +18,13 @@ test('the OpenAPI document served by the app is valid OpenAPI 3.1 and lists the 
 
 test('POST /api/v1/hubble answers H0 with its error budget, and problem+json for bad input', async ({ request }) => {
 	const ok = await request.post('/api/v1/hubble', {
-		data: { distance_mpc: 16.5, distance_mpc_err: 0.8, velocity_km_s: 1200, velocity_km_s_err: 10 }
+		data: {
+			distance_mpc: 16.5,
+			distance_mpc_err: 0.8,
+			velocity_km_s: 1200,
+			velocity_km_s_err: 10,
+			velocity_frame: 'heliocentric'
+		}
 	});
 	expect(ok.status()).toBe(200);
 	await expectMatchesOpenApi(request, ok, 'POST /api/v1/hubble');
@@ -32,6 +38,11 @@ test('POST /api/v1/hubble answers H0 with its error budget, and problem+json for
 	await expectMatchesOpenApi(request, bad, 'POST /api/v1/hubble');
 	const problem = await bad.json();
 	expect(problem.errors.map((error: { path: string }) => error.path)).toEqual(
-		expect.arrayContaining(['distance_mpc', 'velocity_km_s'])
+		expect.arrayContaining(['distance_mpc', 'velocity_frame'])
 	);
+	const noVelocity = await request.post('/api/v1/hubble', {
+		data: { distance_mpc: 16.5, distance_mpc_err: 0.8, velocity_frame: 'cmb' }
+	});
+	expect(noVelocity.status()).toBe(422);
+	expect((await noVelocity.json()).errors.map((error: { path: string }) => error.path)).toContain('velocity_km_s');
 });

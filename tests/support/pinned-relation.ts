@@ -25,10 +25,10 @@ export async function pinPublishedRelation(
 		embargoUntil?: Date | null;
 		groupSlug?: string;
 		/**
-		 * Keys frozen by later engines (e.g. `systematics`, `fit_quality`, `wesenheit_ratio` of engine 2.0.0),
-		 * merged into the content; the digest is then taken over the merged content as it stands.
+		 * Rewrites the content before it is frozen (e.g. as another engine version would have written it);
+		 * the digest is then taken over the rewritten content as it stands, without schema validation.
 		 */
-		laterEngineContent?: { engineVersion: string; keys: Record<string, unknown> };
+		reshape?: (content: Record<string, unknown>) => Record<string, unknown>;
 	}
 ): Promise<{ ref: string; digest: string; groupSlug: string }> {
 	const em = orm.em.fork();
@@ -105,13 +105,8 @@ export async function pinPublishedRelation(
 		fit_quality: { reduced_chi_square: null, degrees_of_freedom: 0, covariance_scaled: false, errors_too_small: false },
 		wesenheit_ratio: null
 	};
-	const later = options.laterEngineContent;
-	const sealed = later
-		? (() => {
-				const merged = { ...content, engine_version: later.engineVersion, ...later.keys };
-				return { ...merged, digest: digestOf(merged) };
-			})()
-		: sealRelationVersion(content);
+	const reshaped = options.reshape?.({ ...content });
+	const sealed = reshaped ? { ...reshaped, digest: digestOf(reshaped) } : sealRelationVersion(content);
 	const id = crypto.randomUUID();
 	em.create(RelationVersion, {
 		id,

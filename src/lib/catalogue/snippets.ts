@@ -101,7 +101,9 @@ for (;;) {
 export function hubbleSnippet(language: SnippetLanguage, origin: string): string {
 	const body = {
 		distance_mpc: 20.1,
-		distance_mpc_err: 0.9,
+		distance_mpc_err_stat: 0.3,
+		distance_mpc_err_sys: 0.85,
+		velocity_frame: 'heliocentric',
 		observed_wavelength_nm: 659.25,
 		observed_wavelength_nm_err: 0.02,
 		observed_medium: 'air',
