@@ -1,6 +1,7 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { expect, test } from '@playwright/test';
 import {
+	inEngineOneShape,
 	sealRelationVersion,
 	syntheticCalibrators,
 	type RelationVersionContent
@@ -153,14 +154,8 @@ test('a version frozen by engine 1.0.0 reads "systematics not recorded"', async 
 	const em = orm.em.fork();
 	const relation = await em.findOneOrFail(Relation, { slug });
 	const current = await em.findOneOrFail(RelationVersion, { relation, number: 1 });
-	const {
-		systematics: _s,
-		fit_quality: _q,
-		wesenheit_ratio: _r,
-		digest: _d,
-		...rest
-	} = current.content as unknown as RelationVersionContent & { digest: string };
-	const old = sealRelationVersion({ ...rest, ref: `${slug}@2`, version: 2, engine_version: '1.0.0' });
+	const { digest: _d, ...rest } = current.content as unknown as RelationVersionContent & { digest: string };
+	const old = sealRelationVersion({ ...inEngineOneShape(rest), ref: `${slug}@2`, version: 2 });
 	const id = crypto.randomUUID();
 	em.create(RelationVersion, { id, relation, number: 2, digest: old.digest, content: old as never, proposalId: null });
 	em.create(VersionLifecycle, { id, relation, number: 2, status: 'superseded', embargoUntil: null });

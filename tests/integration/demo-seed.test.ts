@@ -1,7 +1,12 @@
 import { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import config from '../../mikro-orm.config';
-import { sealRelationVersion, verifyDigest, type RelationVersionContent } from '../../src/lib/calibration/index';
+import {
+	inEngineOneShape,
+	sealRelationVersion,
+	verifyDigest,
+	type RelationVersionContent
+} from '../../src/lib/calibration/index';
 import { reproduceContent, reproduceVersion } from '../../src/lib/server/registry/reproduce';
 import { CalibratorRevision, CalibratorSet, CalibratorValueSource, User } from '../../src/lib/server/entities/index';
 import { Relation } from '../../src/lib/server/entities/relation.entity';
@@ -81,14 +86,8 @@ describe('the invented demo', () => {
 		// kestrel-lantern-w-vi@2 as engine 1.0.0 froze it in a demo seeded before engine 2: the same content
 		// without the three keys engine 2 added. It still reproduces its own digest.
 		const existing = await em.findOneOrFail(RelationVersion, { relation: { slug: 'kestrel-lantern-w-vi' }, number: 2 });
-		const {
-			systematics: _s,
-			fit_quality: _q,
-			wesenheit_ratio: _r,
-			digest: _d,
-			...rest
-		} = existing.content as unknown as RelationVersionContent & { digest: string };
-		const engineOne = sealRelationVersion({ ...rest, engine_version: '1.0.0' });
+		const { digest: _d, ...rest } = existing.content as unknown as RelationVersionContent & { digest: string };
+		const engineOne = sealRelationVersion(inEngineOneShape(rest));
 		const revision = await em.findOneOrFail(CalibratorRevision, {
 			calibratorSet: { slug: engineOne.calibrator_set.slug },
 			number: engineOne.calibrator_set.revision

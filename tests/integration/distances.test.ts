@@ -2,6 +2,7 @@ import { loadavg } from 'node:os';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import {
+	inEngineOneShape,
 	applyRelation,
 	bandExtinctionPerEbv,
 	combineHostDistance,
@@ -355,10 +356,7 @@ describe('photometric systems, error budgets and intervals through the distance 
 			title: 'W_VI 1.x (test)',
 			relation: wBand,
 			// As engine 1.0.0 froze it: none of the engine-2 keys.
-			reshape: ({ systematics: _s, fit_quality: _q, wesenheit_ratio: _r, ...engine1 }) => ({
-				...engine1,
-				engine_version: '1.0.0'
-			})
+			reshape: (content) => inEngineOneShape(content as unknown as RelationVersionContent)
 		});
 		const before = toDistanceResponse(
 			await computeDistances(em(), null, readDistanceEnvelope({ relation: old.ref, stars: wStars }))

@@ -94,7 +94,8 @@ export async function pinPublishedRelation(
 			population: r.population,
 			period_filter: { log_period_min: null, log_period_max: null },
 			fundamentalised: false,
-			assumed_intrinsic_scatter: null
+			assumed_intrinsic_scatter: null,
+			intrinsic_scatter_estimator: null
 		},
 		engine_version: ENGINE_VERSION,
 		calibrator_set: { slug: 'published-coefficients', revision: 1, digest: `sha256:${'0'.repeat(64)}` },

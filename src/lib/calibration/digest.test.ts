@@ -12,6 +12,7 @@ import {
 } from './digest';
 import { ENGINE_VERSION } from './engine-version';
 import {
+	inEngineOneShape,
 	findUndefinedPaths,
 	parseCalibratorRevisionContent,
 	parseRelationVersionContent,
@@ -60,7 +61,8 @@ function sampleVersion(): RelationVersionContent {
 			population: 'classical_fundamental',
 			period_filter: { log_period_min: 0.4, log_period_max: null },
 			fundamentalised: false,
-			assumed_intrinsic_scatter: null
+			assumed_intrinsic_scatter: null,
+			intrinsic_scatter_estimator: 'reml'
 		},
 		engine_version: ENGINE_VERSION,
 		calibrator_set: { slug: 'mw-cepheids', revision: 2, digest: `sha256:${'ab'.repeat(32)}` },
@@ -79,8 +81,7 @@ function sampleVersion(): RelationVersionContent {
 
 /** The same version as engine 1.0.0 froze it: without the keys engine 2 added. */
 function engineOneVersion(): RelationVersionContent {
-	const { systematics: _s, fit_quality: _q, wesenheit_ratio: _r, ...content } = sampleVersion();
-	return { ...content, engine_version: '1.0.0' };
+	return inEngineOneShape(sampleVersion());
 }
 
 function sampleRevision(): CalibratorRevisionContent {

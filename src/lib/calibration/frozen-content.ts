@@ -95,6 +95,17 @@ const fitQualitySchema = z.strictObject({
 /** Keys that versions frozen by engine 2 and later carry and engine 1.x versions do not. */
 export const ENGINE_2_CONTENT_KEYS = ['systematics', 'fit_quality', 'wesenheit_ratio'] as const;
 
+/**
+ * The same content in the shape engine 1.0.0 froze: without the keys engine 2 added (at the top and
+ * in `fit`). For tests and checks that rebuild what an older version looks like.
+ */
+export function inEngineOneShape<T extends RelationVersionContent>(content: T): T {
+	const copy: Record<string, unknown> = { ...content, engine_version: '1.0.0' };
+	for (const key of ENGINE_2_CONTENT_KEYS) delete copy[key];
+	const { intrinsic_scatter_estimator: _estimator, ...fit } = content.fit;
+	return { ...copy, fit } as T;
+}
+
 /** The major number of an engine version string ("2.0.0" → 2). */
 export function engineMajor(engineVersion: string): number {
 	return Number.parseInt(engineVersion.split('.')[0], 10);
