@@ -289,9 +289,19 @@ test('a token without read:private answers like an anonymous caller; signed-in r
 			const answer = await withToken(token, path);
 			expect(answer.status, path).toBe(base.status);
 			expect(answer.text, path).toBe(base.text);
-			expect(answer.text, path).not.toContain(hiddenStar);
 			expect(answer.text, path).not.toContain(PRIVATE_RELATION_TITLE);
 		}
+	}
+	// …and the anonymous answers compared with hide the private set, relation and version.
+	const stars = await anonymous(`/api/v1/stars?q=${encodeURIComponent(hiddenStar)}`);
+	expect(JSON.parse(stars.text).items).toEqual([]);
+	for (const path of [
+		`/api/v1/relations/${privateRelation}`,
+		`/api/v1/calibrator-sets/${privateSet}`,
+		`/api/v1/pins/${embargoed.relation}@1`,
+		`/api/v1/digests/${embargoed.digest}`
+	]) {
+		expect((await anonymous(path)).status, path).toBe(404);
 	}
 	// With read:private the same member sees the private set and star: the comparison above is not empty.
 	const withScope = await reviewPerson(orm, 'vis scoped member', ['curator'], desk.group);
