@@ -245,9 +245,9 @@ test('an approved proposal under embargo: 404 and unlisted for every caller outs
 	expect(refit.text).toContain(embargoed.title);
 });
 
-test('a fit of a group-private set cannot be proposed for a public relation: 422 problem+json naming fit', async () => {
-	const slug = await relation(desk.author, desk.group);
-	const fit = await api(desk.author.token, 'POST', '/api/v1/fits', {
+/** A fit of the group-private set, as someone who may see it. */
+const fitPrivateSet = (token: string) =>
+	api(token, 'POST', '/api/v1/fits', {
 		calibrator_set: privateSet,
 		revision: 1,
 		band: 'W_VI',
@@ -255,6 +255,10 @@ test('a fit of a group-private set cannot be proposed for a public relation: 422
 		anchor: 'host',
 		method: 'ml_scatter'
 	});
+
+test('a fit of a group-private set cannot be proposed for a public relation: 422 problem+json naming fit', async () => {
+	const slug = await relation(desk.author, desk.group);
+	const fit = await fitPrivateSet(desk.author.token);
 	expect(fit.status).toBe(200);
 	const response = await fetch(`${origin}/api/v1/relations/${slug}/proposals`, {
 		method: 'POST',
@@ -289,9 +293,19 @@ test('a token without read:private answers like an anonymous caller; signed-in r
 			const answer = await withToken(token, path);
 			expect(answer.status, path).toBe(base.status);
 			expect(answer.text, path).toBe(base.text);
-			expect(answer.text, path).not.toContain(hiddenStar);
 			expect(answer.text, path).not.toContain(PRIVATE_RELATION_TITLE);
 		}
+	}
+	// …and the anonymous answers compared with hide the private set, relation and version.
+	const stars = await anonymous(`/api/v1/stars?q=${encodeURIComponent(hiddenStar)}`);
+	expect(JSON.parse(stars.text).items).toEqual([]);
+	for (const path of [
+		`/api/v1/relations/${privateRelation}`,
+		`/api/v1/calibrator-sets/${privateSet}`,
+		`/api/v1/pins/${embargoed.relation}@1`,
+		`/api/v1/digests/${embargoed.digest}`
+	]) {
+		expect((await anonymous(path)).status, path).toBe(404);
 	}
 	// With read:private the same member sees the private set and star: the comparison above is not empty.
 	const withScope = await reviewPerson(orm, 'vis scoped member', ['curator'], desk.group);
@@ -305,14 +319,7 @@ test('a token without read:private answers like an anonymous caller; signed-in r
 	expect(list.status).toBe(200);
 	expect(leaks(list.text)).toEqual([]);
 	expect(list.text).not.toContain(embargoed.proposal);
-	const privateFit = await api(withScope.token, 'POST', '/api/v1/fits', {
-		calibrator_set: privateSet,
-		revision: 1,
-		band: 'W_VI',
-		population: 'classical_fundamental',
-		anchor: 'host',
-		method: 'ml_scatter'
-	});
+	const privateFit = await fitPrivateSet(withScope.token);
 	expect(privateFit.status).toBe(200);
 	expect((await withToken(withScope.token, `/api/v1/jobs/${privateFit.body.id}`)).status).toBe(200);
 	const ownWithoutScope = await createBearerToken(orm, withScope.id, ['write']);
