@@ -44,7 +44,12 @@ export const handleAuth: Handle = async ({ event, resolve }) => {
 	if (!cookieToken) {
 		event.cookies.delete(SESSION_COOKIE, { path: '/', secure: event.url.protocol === 'https:' });
 		if (api) {
-			return problem(401, 'The session cookie is empty: sign in again, or send an API token.', {}, EMPTY_COOKIE_CHALLENGE);
+			return problem(
+				401,
+				'The session cookie is empty: sign in again, or send an API token.',
+				{},
+				EMPTY_COOKIE_CHALLENGE
+			);
 		}
 		return resolve(event);
 	}
