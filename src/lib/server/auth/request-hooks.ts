@@ -103,7 +103,9 @@ export const handleGuard: Handle = async ({ event, resolve }) => {
 	if (api && event.locals.badBearer) {
 		return problem(
 			401,
-			'The API token is unknown, revoked or expired.',
+			bearerToken(event.request.headers.get('authorization'))
+				? 'The API token is unknown, revoked or expired.'
+				: 'The Authorization header holds no API token: send `Authorization: Bearer cbk_…`.',
 			{},
 			{
 				'www-authenticate': 'Bearer error="invalid_token"'
