@@ -1,15 +1,12 @@
-import { spawn, type ChildProcess } from 'node:child_process';
 import { createServer } from 'node:http';
 import type { AddressInfo } from 'node:net';
-import { join } from 'node:path';
 import type { MikroORM } from '@mikro-orm/postgresql';
 import { expect, test } from '@playwright/test';
 import { SESSION_COOKIE } from '../../src/lib/server/auth/lucia';
 import { Group, Relation, RelationVersion, VersionLifecycle } from '../../src/lib/server/entities/index';
-import { freePort } from '../../src/lib/server/ops/postgres-cluster';
-import { PROJECT_ROOT } from '../../src/lib/server/ops/project-paths';
 import { createBearerToken, createPerson, createSessionCookie, openOrm, uniqueSlug } from './support/accounts';
 import { expectMatchesOpenApi } from './support/openapi-contract';
+import { startServer, type SpawnedServer } from './support/spawned-server';
 
 /**
  * The front server (src/lib/server/ops/serve.ts) as deployed: the shared test server for caching and
@@ -224,43 +221,18 @@ test('anonymous API calls carry RateLimit fields; calls with a token do not', as
 });
 
 test.describe('a second front server with a low limit and a read replica', () => {
-	let child: ChildProcess;
+	let server: SpawnedServer;
 	let base: string;
 
 	test.beforeAll(async () => {
-		const port = await freePort();
-		base = `http://127.0.0.1:${port}`;
 		const readUrl = new URL(process.env.DATABASE_URL!);
 		readUrl.searchParams.set('application_name', REPLICA_APPLICATION_NAME);
-		child = spawn(process.execPath, ['--import', 'tsx', join(PROJECT_ROOT, 'src/lib/server/ops/serve.ts')], {
-			cwd: PROJECT_ROOT,
-			env: {
-				...process.env,
-				HOST: '127.0.0.1',
-				PORT: String(port),
-				ORIGIN: base,
-				CANDLEBOOK_ANON_RATE_LIMIT: '3/60',
-				CANDLEBOOK_IN_PROCESS_WORKER: 'false',
-				DATABASE_READ_URL: readUrl.toString()
-			},
-			stdio: ['ignore', 'ignore', 'inherit']
-		});
-		const deadline = Date.now() + 30_000;
-		for (;;) {
-			try {
-				if ((await fetch(`${base}/healthz`)).ok) break;
-			} catch {
-				if (Date.now() > deadline || child.exitCode !== null) throw new Error('the second front server did not start');
-				await new Promise((resolve) => setTimeout(resolve, 200));
-			}
-		}
+		server = await startServer({ CANDLEBOOK_ANON_RATE_LIMIT: '3/60', DATABASE_READ_URL: readUrl.toString() });
+		base = server.base;
 	});
 
 	test.afterAll(async () => {
-		if (!child || child.exitCode !== null) return;
-		const exited = new Promise((resolve) => child.once('exit', resolve));
-		child.kill('SIGTERM');
-		await exited;
+		await server?.stop();
 	});
 
 	test('the fourth anonymous call in the window is refused with 429 problem+json and Retry-After', async ({

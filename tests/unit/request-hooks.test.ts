@@ -79,6 +79,7 @@ describe('credentials that are present but empty or malformed are bad credential
 		const response = await run(event);
 		expect(response.status).toBe(401);
 		expect(response.headers.get('content-type')).toContain('application/problem+json');
+		expect((await response.json()).detail).toContain('Authorization');
 		expect(event.locals.user).toBeNull();
 	});
 

@@ -90,7 +90,10 @@ export function parseConfig(env: Record<string, string | undefined>): AppConfig 
 
 /** Addresses only this machine can reach; `0.0.0.0` and `::` listen on every interface. */
 export function isLoopbackHost(host: string): boolean {
-	const bare = host.trim().toLowerCase().replace(/^\[(.*)\]$/, '$1');
+	const bare = host
+		.trim()
+		.toLowerCase()
+		.replace(/^\[(.*)\]$/, '$1');
 	return bare === 'localhost' || bare === '::1' || /^(::ffff:)?127(\.\d{1,3}){3}$/.test(bare);
 }
 

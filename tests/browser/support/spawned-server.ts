@@ -20,11 +20,16 @@ export async function startServer(overrides: NodeJS.ProcessEnv): Promise<Spawned
 	const port = await freePort();
 	const child = spawn(process.execPath, ['--import', 'tsx', join(PROJECT_ROOT, 'src/lib/server/ops/serve.ts')], {
 		cwd: PROJECT_ROOT,
-		env: environmentWith({ HOST: '127.0.0.1', PORT: String(port), CANDLEBOOK_IN_PROCESS_WORKER: 'false', ...overrides }),
+		env: environmentWith({
+			HOST: '127.0.0.1',
+			PORT: String(port),
+			CANDLEBOOK_IN_PROCESS_WORKER: 'false',
+			...overrides
+		}),
 		stdio: ['ignore', 'ignore', 'inherit']
 	});
 	const base = `http://127.0.0.1:${port}`;
-	const deadline = Date.now() + 30_000;
+	const deadline = Date.now() + 90_000;
 	for (;;) {
 		try {
 			if ((await fetch(`${base}/healthz`)).ok) break;

@@ -44,7 +44,12 @@ export const handleAuth: Handle = async ({ event, resolve }) => {
 	if (!cookieToken) {
 		event.cookies.delete(SESSION_COOKIE, { path: '/', secure: event.url.protocol === 'https:' });
 		if (api) {
-			return problem(401, 'The session cookie is empty: sign in again, or send an API token.', {}, EMPTY_COOKIE_CHALLENGE);
+			return problem(
+				401,
+				'The session cookie is empty: sign in again, or send an API token.',
+				{},
+				EMPTY_COOKIE_CHALLENGE
+			);
 		}
 		return resolve(event);
 	}
@@ -98,7 +103,9 @@ export const handleGuard: Handle = async ({ event, resolve }) => {
 	if (api && event.locals.badBearer) {
 		return problem(
 			401,
-			'The API token is unknown, revoked or expired.',
+			bearerToken(event.request.headers.get('authorization'))
+				? 'The API token is unknown, revoked or expired.'
+				: 'The Authorization header holds no API token: send `Authorization: Bearer cbk_…`.',
 			{},
 			{
 				'www-authenticate': 'Bearer error="invalid_token"'

@@ -39,7 +39,10 @@ describe('everything else passes', () => {
 		['a typed or bookmarked request', { fetchSite: 'none' }],
 		['the Origin of this site without fetch metadata', { origin: SITE }],
 		['a program holding the cookie itself (neither header)', {}],
-		['an API token from anywhere', { cookieAuthenticated: false, fetchSite: 'cross-site', origin: 'https://pipeline.example' }],
+		[
+			'an API token from anywhere',
+			{ cookieAuthenticated: false, fetchSite: 'cross-site', origin: 'https://pipeline.example' }
+		],
 		['a read from another site', { method: 'GET', fetchSite: 'cross-site', origin: 'https://evil.example' }],
 		['a CORS preflight', { method: 'OPTIONS', fetchSite: 'cross-site', origin: 'https://evil.example' }],
 		['a page form post (SvelteKit checks those)', { pathname: '/relations/x', origin: 'https://evil.example' }]
