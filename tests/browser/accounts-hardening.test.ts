@@ -1,4 +1,5 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
+import { median } from 'simple-statistics';
 import { expect, test, type Browser } from '@playwright/test';
 import { OneTimeLink } from '../../src/lib/server/entities/index';
 import {
@@ -89,12 +90,6 @@ const masked = (answer: { httpStatus: number; body: string }, address: string) =
 	httpStatus: answer.httpStatus,
 	body: answer.body.split(address).join('<address>')
 });
-
-function median(values: number[]): number {
-	const sorted = [...values].sort((a, b) => a - b);
-	const middle = Math.floor(sorted.length / 2);
-	return sorted.length % 2 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
-}
 
 /**
  * Ten rounds of known then unknown address, alternating; asserts masked status and body are identical

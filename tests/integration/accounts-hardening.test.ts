@@ -1,4 +1,5 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
+import { median } from 'simple-statistics';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import {
 	acceptInvitation,
@@ -62,12 +63,6 @@ async function activeUser(label: string) {
 	);
 	await setPassword(em(), user.id, PASSWORD, audit('127.0.0.1'));
 	return user;
-}
-
-function median(values: number[]): number {
-	const sorted = [...values].sort((a, b) => a - b);
-	const middle = Math.floor(sorted.length / 2);
-	return sorted.length % 2 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
 }
 
 /**
