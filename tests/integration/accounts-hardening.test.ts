@@ -1,4 +1,5 @@
 import type { MikroORM } from '@mikro-orm/postgresql';
+import { median } from 'simple-statistics';
 import { afterAll, beforeAll, describe, expect, test } from 'vitest';
 import {
 	acceptInvitation,
@@ -64,12 +65,6 @@ async function activeUser(label: string) {
 	return user;
 }
 
-function median(values: number[]): number {
-	const sorted = [...values].sort((a, b) => a - b);
-	const middle = Math.floor(sorted.length / 2);
-	return sorted.length % 2 ? sorted[middle] : (sorted[middle - 1] + sorted[middle]) / 2;
-}
-
 /**
  * Runs `known` and `unknown` alternately `rounds` times and returns the median milliseconds of each and
  * their ratio, printed. The ratio bound is generous (0.5–2): the point is that neither path does
@@ -84,13 +79,17 @@ async function timeAlike(
 	const knownMs: number[] = [];
 	const unknownMs: number[] = [];
 	for (let i = 0; i < rounds; i++) {
-		for (const [run, into] of [
+		const pairs = [
 			[known, knownMs],
 			[unknown, unknownMs]
-		] as const) {
+		] as const;
+		// Which goes first alternates, so background work left from the round before slows both alike.
+		for (const [run, into] of i % 2 ? pairs : [...pairs].reverse()) {
 			const t0 = performance.now();
-			await run(i);
+			const answer = await run(i);
 			into.push(performance.now() - t0);
+			// Mail that leaves after the answer is not part of it; let it finish before the next round.
+			await (answer as { delivery?: Promise<void> } | undefined)?.delivery;
 		}
 	}
 	const result = { known: median(knownMs), unknown: median(unknownMs) };
@@ -291,16 +290,12 @@ describe('nothing tells whether an address has an account', () => {
 
 	test('password reset: a known and an unknown address answer alike, in alike time', async () => {
 		const users = await Promise.all(Array.from({ length: 10 }, (_, i) => activeUser(`reset-timed${i}`)));
-		const deliveries: Promise<void>[] = [];
 		const ratio = await timeAlike(
 			'password reset request (service)',
 			10,
-			async (i) =>
-				deliveries.push((await requestPasswordReset(em(), users[i].email, ORIGIN, audit(clientAddress()))).delivery),
-			async (i) =>
-				deliveries.push((await requestPasswordReset(em(), unique(`r${i}`), ORIGIN, audit(clientAddress()))).delivery)
+			async (i) => await requestPasswordReset(em(), users[i].email, ORIGIN, audit(clientAddress())),
+			async (i) => await requestPasswordReset(em(), unique(`r${i}`), ORIGIN, audit(clientAddress()))
 		);
-		await Promise.all(deliveries);
 		expect(ratio).toBeGreaterThan(0.5);
 		expect(ratio).toBeLessThan(2);
 	});
@@ -320,20 +315,12 @@ describe('nothing tells whether an address has an account', () => {
 		expect((await mail.waitFor((m) => m.to.includes(free))).text).toMatch(/\/verify-email\?token=/);
 
 		const others = await Promise.all(Array.from({ length: 10 }, (_, i) => activeUser(`holder${i}`)));
-		const deliveries: Promise<void>[] = [];
 		const ratio = await timeAlike(
 			'e-mail change (service)',
 			10,
-			async (i) =>
-				deliveries.push(
-					(await requestEmailChange(em(), mover.id, others[i].email, ORIGIN, audit('127.0.0.1'))).delivery
-				),
-			async (i) =>
-				deliveries.push(
-					(await requestEmailChange(em(), mover.id, unique(`to${i}`), ORIGIN, audit('127.0.0.1'))).delivery
-				)
+			async (i) => await requestEmailChange(em(), mover.id, others[i].email, ORIGIN, audit('127.0.0.1')),
+			async (i) => await requestEmailChange(em(), mover.id, unique(`to${i}`), ORIGIN, audit('127.0.0.1'))
 		);
-		await Promise.all(deliveries);
 		expect(ratio).toBeGreaterThan(0.5);
 		expect(ratio).toBeLessThan(2);
 	});
@@ -361,21 +348,12 @@ describe('nothing tells whether an address has an account', () => {
 		expect((await em().findOneOrFail(User, { email: stranger })).roles).toEqual(['reader']);
 
 		const people = await Promise.all(Array.from({ length: 10 }, (_, i) => activeUser(`joiner${i}`)));
-		const deliveries: Promise<void>[] = [];
 		const ratio = await timeAlike(
 			'add member (service)',
 			10,
-			async (i) =>
-				deliveries.push(
-					(await addOrInviteMember(em(), group.slug, people[i].email, 'member', ORIGIN, audit('127.0.0.1'))).delivery
-				),
-			async (i) =>
-				deliveries.push(
-					(await addOrInviteMember(em(), group.slug, unique(`newbie${i}`), 'member', ORIGIN, audit('127.0.0.1')))
-						.delivery
-				)
+			async (i) => await addOrInviteMember(em(), group.slug, people[i].email, 'member', ORIGIN, audit('127.0.0.1')),
+			async (i) => await addOrInviteMember(em(), group.slug, unique(`newbie${i}`), 'member', ORIGIN, audit('127.0.0.1'))
 		);
-		await Promise.all(deliveries);
 		expect(ratio).toBeGreaterThan(0.5);
 		expect(ratio).toBeLessThan(2);
 	});

@@ -1,5 +1,5 @@
 import { UniqueConstraintViolationException, type EntityManager } from '@mikro-orm/postgresql';
-import { Group, GroupMembership, User, type GroupStanding } from '../entities/index';
+import { Group, GroupMembership, User, type GroupEntity, type GroupStanding, type UserEntity } from '../entities/index';
 import { inviteToGroup } from './account-service';
 import { recordAudit, type AuditContext } from './audit';
 
@@ -39,6 +39,12 @@ export async function groupsOf(em: EntityManager, userId: string) {
 	return em.find(GroupMembership, { user: userId }, { populate: ['group'], orderBy: { group: { name: 'asc' } } });
 }
 
+async function groupOrFail(em: EntityManager, slug: string) {
+	const group = await em.findOne(Group, { slug });
+	if (!group) throw new GroupError(`There is no group called ${slug}.`);
+	return group;
+}
+
 /** Adds a person (by e-mail) to a group, or changes their standing when already a member. */
 export async function addMember(
 	em: EntityManager,
@@ -47,17 +53,26 @@ export async function addMember(
 	standing: GroupStanding,
 	audit: AuditContext
 ) {
-	const group = await em.findOne(Group, { slug });
-	if (!group) throw new GroupError(`There is no group called ${slug}.`);
+	const group = await groupOrFail(em, slug);
 	const user = await em.findOne(User, { email: email.toLowerCase() });
 	if (!user) throw new GroupError('Nobody with that address has an account; invite them first.');
+	return placeInGroup(em, group, user, standing, audit);
+}
+
+async function placeInGroup(
+	em: EntityManager,
+	group: GroupEntity,
+	user: UserEntity,
+	standing: GroupStanding,
+	audit: AuditContext
+) {
 	const existing = await em.findOne(GroupMembership, { group, user });
 	const membership = existing ?? em.create(GroupMembership, { group, user, standing });
 	membership.standing = standing;
 	await em.flush();
 	await recordAudit(em, 'group-member-added', {
 		...audit,
-		subject: slug,
+		subject: group.slug,
 		detail: { userId: user.id, email: user.email, standing }
 	});
 	return membership;
@@ -76,10 +91,11 @@ export async function addOrInviteMember(
 	origin: string,
 	audit: AuditContext
 ): Promise<{ delivery: Promise<void> }> {
-	if (!(await em.count(Group, { slug }))) throw new GroupError(`There is no group called ${slug}.`);
+	const group = await groupOrFail(em, slug);
+	const user = await em.findOne(User, { email: email.toLowerCase() });
 	const added = { delivery: Promise.resolve() };
-	if (await em.count(User, { email: email.toLowerCase() })) {
-		await addMember(em, slug, email, standing, audit);
+	if (user) {
+		await placeInGroup(em, group, user, standing, audit);
 		return added;
 	}
 	try {
