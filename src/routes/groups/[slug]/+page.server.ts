@@ -12,6 +12,7 @@ import {
 import { EmailSchema } from '$lib/server/accounts/schemas';
 import { requireGroupStanding } from '$lib/server/auth/guards';
 import { auditContext } from '$lib/server/auth/request-context';
+import { publicOrigin } from '$lib/server/config';
 import { Group, GROUP_STANDINGS } from '$lib/server/entities/index';
 import { formErrors, textFields } from '$lib/server/forms';
 import type { Actions, PageServerLoad } from './$types';
@@ -46,7 +47,7 @@ export const actions: Actions = {
 				event.params.slug,
 				parsed.data.email,
 				parsed.data.standing,
-				event.url.origin,
+				publicOrigin(),
 				auditContext(event)
 			);
 		} catch (cause) {

@@ -7,6 +7,7 @@ import { toMemberDto } from '$lib/server/accounts/dto';
 import { addOrInviteMember, GroupError, listMembers } from '$lib/server/accounts/group-service';
 import { requireGroupStanding } from '$lib/server/auth/guards';
 import { auditContext } from '$lib/server/auth/request-context';
+import { publicOrigin } from '$lib/server/config';
 import { Group } from '$lib/server/entities/index';
 import type { z } from 'zod';
 import type { RequestHandler } from './$types';
@@ -30,7 +31,7 @@ export const POST: RequestHandler = async (event) => {
 			event.params.slug,
 			body.email,
 			body.standing,
-			event.url.origin,
+			publicOrigin(),
 			auditContext(event)
 		);
 	} catch (cause) {
