@@ -16,7 +16,7 @@ export const handleVisitorFormLimit: Handle = async ({ event, resolve }) => {
 	if (event.locals.user || !WRITES.has(request.method) || url.pathname.startsWith('/api/')) return resolve(event);
 	let body: Uint8Array;
 	try {
-		body = await readBodyWithLimit(request, VISITOR_FORM_LIMIT_BYTES);
+		body = await readBodyWithLimit(request, VISITOR_FORM_LIMIT_BYTES, 'leave');
 	} catch (caught) {
 		if (!isHttpError(caught) || caught.status !== 413) throw caught;
 		return new Response(

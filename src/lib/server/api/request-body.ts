@@ -6,7 +6,16 @@ import { fail, fieldErrors } from './errors';
  * Reads a request body up to `maxBytes`, answering 413 before buffering more. The Content-Length
  * header is checked first, then the bytes actually received (a client may lie or stream).
  */
-export async function readBodyWithLimit(request: Request, maxBytes: number): Promise<Uint8Array> {
+export async function readBodyWithLimit(
+	request: Request,
+	maxBytes: number,
+	/**
+	 * `cancel` (default) stops the upload at once; `leave` stops reading but keeps the connection, so the
+	 * 413 still reaches the client (the caller answers with `connection: close`): adapter-node's cancel
+	 * destroys the socket before any answer is written.
+	 */
+	onExcess: 'cancel' | 'leave' = 'cancel'
+): Promise<Uint8Array> {
 	const declared = Number(request.headers.get('content-length') ?? NaN);
 	if (Number.isFinite(declared) && declared > maxBytes) tooLarge(maxBytes);
 	if (!request.body) return new Uint8Array();
@@ -18,7 +27,8 @@ export async function readBodyWithLimit(request: Request, maxBytes: number): Pro
 		if (done) break;
 		received += value.byteLength;
 		if (received > maxBytes) {
-			await reader.cancel();
+			if (onExcess === 'cancel') await reader.cancel();
+			else reader.releaseLock();
 			tooLarge(maxBytes);
 		}
 		chunks.push(value);
