@@ -8,7 +8,6 @@
  */
 import { pathToFileURL } from 'node:url';
 import { hostDistanceBatch } from '../../src/lib/calibration/host-batch';
-import type { Relation } from '../../src/lib/calibration/types';
 import {
 	readDistanceEnvelope,
 	readStarColumns,
@@ -16,28 +15,9 @@ import {
 	type DistanceComputation
 } from '../../src/lib/server/api/distances';
 import type { BenchCase } from './calibration.bench';
+import { INVENTED_V_BAND } from '../fixtures/invented-v-band';
 
-/** Invented V-band relation with a metallicity term (single band, so reddening is applied too). */
-const relation: Relation = {
-	bandId: 'V',
-	population: 'classical_fundamental',
-	magnitudeSystem: 'Vega',
-	coefficients: { zeroPoint: -3.944, slope: -2.67, metallicityTerm: -0.2 },
-	pivotLogPeriod: 1,
-	pivotFeh: 0,
-	covariance: {
-		axes: ['zero_point', 'slope', 'metallicity_term'],
-		matrix: [
-			[0.028 ** 2, 0.0004, 0.0002],
-			[0.0004, 0.095 ** 2, -0.0003],
-			[0.0002, -0.0003, 0.05 ** 2]
-		]
-	},
-	intrinsicScatter: 0.21,
-	validity: { logPeriodMin: 0.4, logPeriodMax: 1.8, fehMin: -0.6, fehMax: 0.4 },
-	extinctionLaw: 'ccm89',
-	rV: 3.1
-};
+const relation = INVENTED_V_BAND;
 
 function requestBody(n: number): string {
 	const stars = Array.from({ length: n }, (_, i) => ({

@@ -83,9 +83,10 @@ describe('the invented demo', () => {
 		const reproduction = await reproduceVersion(em, null, 'kestrel-lantern-weighted-w-vi', 1);
 		expect(reproduction.digestMatches).toBe(true);
 
-		// kestrel-lantern-w-vi@2 as engine 1.0.0 froze it in a demo seeded before engine 2: the same content
-		// without the three keys engine 2 added. It still reproduces its own digest.
-		const existing = await em.findOneOrFail(RelationVersion, { relation: { slug: 'kestrel-lantern-w-vi' }, number: 2 });
+		// kestrel-lantern-w-vi@1 (ordinary least squares) as engine 1.0.0 froze it in a demo seeded before
+		// engine 2: the same content without the keys engine 2 added. It still reproduces its own digest.
+		// (Its later versions fit σ_int, which engine 2 estimates by REML where engine 1 used ML.)
+		const existing = await em.findOneOrFail(RelationVersion, { relation: { slug: 'kestrel-lantern-w-vi' }, number: 1 });
 		const { digest: _d, ...rest } = existing.content as unknown as RelationVersionContent & { digest: string };
 		const engineOne = sealRelationVersion(inEngineOneShape(rest));
 		const revision = await em.findOneOrFail(CalibratorRevision, {

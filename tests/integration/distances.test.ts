@@ -24,28 +24,9 @@ import { openTestOrm } from '../support/database';
 import { pinPublishedRelation } from '../support/pinned-relation';
 import { hasReferenceData, missingReason, readReferenceFile } from '../support/reference-data';
 import { createActor, unique } from '../support/registry';
+import { INVENTED_V_BAND } from '../fixtures/invented-v-band';
 
-/** The V-band relation of apply.test.ts (invented numbers of realistic size), with its worked example star. */
-const vBand: Relation = {
-	bandId: 'V',
-	population: 'classical_fundamental',
-	magnitudeSystem: 'Vega',
-	coefficients: { zeroPoint: -3.944, slope: -2.67, metallicityTerm: -0.2 },
-	pivotLogPeriod: 1,
-	pivotFeh: 0,
-	covariance: {
-		axes: ['zero_point', 'slope', 'metallicity_term'],
-		matrix: [
-			[0.028 ** 2, 0.0004, 0.0002],
-			[0.0004, 0.095 ** 2, -0.0003],
-			[0.0002, -0.0003, 0.05 ** 2]
-		]
-	},
-	intrinsicScatter: 0.21,
-	validity: { logPeriodMin: 0.4, logPeriodMax: 1.8, fehMin: -0.6, fehMax: 0.4 },
-	extinctionLaw: 'ccm89',
-	rV: 3.1
-};
+const vBand = INVENTED_V_BAND;
 const workedStar = {
 	id: 'cand-1',
 	period_days: 25,

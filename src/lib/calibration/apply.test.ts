@@ -4,28 +4,9 @@ import { applyRelation, applyRelationColumnar, coefficientVariance, type StarPho
 import { bandExtinctionPerEbv, ExtinctionNotApplicableError } from './extinction';
 import { CalibrationInputError, type Relation } from './types';
 import { hasReferenceData, missingReason, readReferenceFile } from '../../../tests/support/reference-data';
+import { INVENTED_V_BAND } from '../../../tests/fixtures/invented-v-band';
 
-/** A V-band relation with a metallicity term and a full 3 × 3 covariance (invented numbers, realistic size). */
-const vBand: Relation = {
-	bandId: 'V',
-	population: 'classical_fundamental',
-	magnitudeSystem: 'Vega',
-	coefficients: { zeroPoint: -3.944, slope: -2.67, metallicityTerm: -0.2 },
-	pivotLogPeriod: 1,
-	pivotFeh: 0,
-	covariance: {
-		axes: ['zero_point', 'slope', 'metallicity_term'],
-		matrix: [
-			[0.028 ** 2, 0.0004, 0.0002],
-			[0.0004, 0.095 ** 2, -0.0003],
-			[0.0002, -0.0003, 0.05 ** 2]
-		]
-	},
-	intrinsicScatter: 0.21,
-	validity: { logPeriodMin: 0.4, logPeriodMax: 1.8, fehMin: -0.6, fehMax: 0.4 },
-	extinctionLaw: 'ccm89',
-	rV: 3.1
-};
+const vBand = INVENTED_V_BAND;
 
 /** W_VI relation without a metallicity term. */
 const wesenheit: Relation = {
