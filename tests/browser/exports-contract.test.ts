@@ -149,13 +149,14 @@ test.beforeAll(async () => {
 		roles: ['reader', 'curator'],
 		groups: [{ group, standing: 'member' }]
 	});
-	curatorToken = await createBearerToken(orm, curator.id, ['write']);
+	// A token reaches its group's private and embargoed work only with read:private.
+	curatorToken = await createBearerToken(orm, curator.id, ['write', 'read:private']);
 	const reviewer = await createPerson(orm, {
 		label: 'export reviewer',
 		roles: ['reader', 'reviewer'],
 		groups: [{ group, standing: 'member' }]
 	});
-	reviewerToken = await createBearerToken(orm, reviewer.id, ['review']);
+	reviewerToken = await createBearerToken(orm, reviewer.id, ['review', 'read:private']);
 	const member = await createPerson(orm, {
 		label: 'export member',
 		roles: ['reader'],

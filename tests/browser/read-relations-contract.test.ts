@@ -103,8 +103,9 @@ test.beforeAll(async () => {
 	await fork.flush();
 	const member = await createPerson(orm, { label: 'contract member', roles: ['reader'], groups: inGroup });
 	const outsider = await createPerson(orm, { label: 'contract outsider', roles: ['reader'] });
-	curatorToken = await createBearerToken(orm, curator.id, ['write']);
-	reviewerToken = await createBearerToken(orm, reviewer.id, ['review', 'write']);
+	// A token reaches its group's private and embargoed work only with read:private.
+	curatorToken = await createBearerToken(orm, curator.id, ['write', 'read:private']);
+	reviewerToken = await createBearerToken(orm, reviewer.id, ['review', 'write', 'read:private']);
 	memberPrivate = await createBearerToken(orm, member.id, ['read:private']);
 	memberPlain = await createBearerToken(orm, member.id, []);
 	outsiderPrivate = await createBearerToken(orm, outsider.id, ['read:private']);

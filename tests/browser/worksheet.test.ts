@@ -351,8 +351,9 @@ test.describe('POST /api/v1/distances over HTTP', () => {
 				`${(bytes / 1e6).toFixed(1)} MB out); upload + parse + refuse: ${baseline.toFixed(0)} ms; load average ${loadavg()[0].toFixed(1)}`
 		);
 		expect(bytes).toBeGreaterThan(10_000_000);
-		// The answer is four times the request and every one of its 700 000 numbers is formatted, so the whole
-		// exchange costs several no-work round trips of the request; a per-star slowdown (or worse) breaks this.
-		expect(fastest).toBeLessThan(15 * baseline);
+		// The answer is about five times the request and every one of its 900 000 numbers (each star's μ, M,
+		// errors, distance and its 16th/84th percentiles) is formatted, so the whole exchange costs many
+		// no-work round trips of the request; a per-star slowdown (or worse) breaks this.
+		expect(fastest).toBeLessThan(20 * baseline);
 	});
 });
