@@ -17,6 +17,7 @@ import { reproduceVersion } from '../../src/lib/server/registry/reproduce';
 import { FitRequestSchema } from '../../src/lib/server/registry/schemas';
 import { findVersion, freezeVersion } from '../../src/lib/server/registry/versions';
 import { fitResultToWire } from '../../src/lib/server/registry/wire';
+import { computeDistances, readDistanceEnvelope, toDistanceResponse } from '../../src/lib/server/api/distances';
 import { openTestOrm } from '../support/database';
 import {
 	createActor,
@@ -117,7 +118,7 @@ async function weightedFit(extra: Record<string, unknown> = {}) {
 }
 
 describe('error budget through the registry', () => {
-	test('a weighted fit is frozen with its scaled covariance, χ²/dof warning and the host distance as a systematic', async () => {
+	test('a weighted fit is frozen with its scaled covariance, χ²/dof warning and the host distance as a systematic, which a host distance then carries once', async () => {
 		const job = await weightedFit();
 		const wire = fitResultToWire(fitResultOf(job) as RefitResult);
 		expect(wire.fit_quality).toMatchObject({ covariance_scaled: true, errors_too_small: true });
@@ -157,6 +158,27 @@ describe('error budget through the registry', () => {
 		const reproduction = await reproduceVersion(em(), null, slug, 1);
 		expect(reproduction.differences).toEqual([]);
 		expect(reproduction.digestMatches).toBe(true);
+
+		// Applied to an invented host, the frozen anchor reaches its distance exactly once, beside the relation's
+		// own coefficient error at the host's mean period: σ_sys = √(σ_anchor² + gᵀΣg), g = (1, ⟨log P⟩ − p0).
+		const hostStars = Array.from({ length: 30 }, (_, i) => {
+			const logPeriod = 0.5 + 0.04 * i;
+			return {
+				id: `budget-host-${i} (invented)`,
+				period_days: 10 ** logPeriod,
+				mean_mag: 29 - 5.95 - 3.3 * (logPeriod - 1) + 0.04 * Math.sin(7 * i),
+				mean_mag_err: 0.05
+			};
+		});
+		const applied = toDistanceResponse(
+			await computeDistances(em(), null, readDistanceEnvelope({ relation: `${slug}@1`, stars: hostStars }))
+		);
+		const g = [1, applied.combined.mean_log_period - content.pivot_log_period];
+		const sigma = content.covariance.matrix;
+		const gSg = g[0] * g[0] * sigma[0][0] + 2 * g[0] * g[1] * sigma[0][1] + g[1] * g[1] * sigma[1][1];
+		expect(Math.abs(applied.combined.mu0_err_sys - Math.sqrt(0.03 ** 2 + gSg))).toBeLessThan(1e-6);
+		expect(applied.combined.error_budget.filter((term) => term.id === 'anchor_distance')).toHaveLength(1);
+		expect(applied.warnings.map((warning) => warning.code)).not.toContain('systematics_not_recorded');
 	});
 
 	test('a version frozen by engine 1.0.0 has no systematics and still reproduces its own digest', async () => {
