@@ -72,7 +72,7 @@ const fitSpecSchema = z.strictObject({
 });
 
 /** Shared error terms of the calibration (engine ≥ 2); see systematics.ts. */
-const systematicsSchema = z.strictObject({
+export const systematicsSchema = z.strictObject({
 	terms: z.array(
 		z.strictObject({
 			id: z.enum(CALIBRATION_SYSTEMATIC_IDS),
@@ -85,7 +85,7 @@ const systematicsSchema = z.strictObject({
 });
 
 /** χ²/dof of the fit and whether the covariance was scaled by it (engine ≥ 2); see fit/fit-quality.ts. */
-const fitQualitySchema = z.strictObject({
+export const fitQualitySchema = z.strictObject({
 	reduced_chi_square: nonNegative.nullable(),
 	degrees_of_freedom: z.number().int(),
 	covariance_scaled: z.boolean(),

@@ -8,10 +8,11 @@
  * distance modulus at (Δlog P, Δ[Fe/H]) is g·effect with g = (1, Δlog P, Δ[Fe/H]).
  */
 import { z } from 'zod';
+import { fitQualitySchema, systematicsSchema } from './frozen-content';
+import type { CalibrationSystematicId } from './systematics';
 import { CalibrationInputError } from './types';
 
-export const RELATION_SYSTEMATIC_IDS = ['anchor_distance', 'parallax_zero_point', 'fixed_slope'] as const;
-export type RelationSystematicId = (typeof RELATION_SYSTEMATIC_IDS)[number];
+export type RelationSystematicId = CalibrationSystematicId;
 
 export interface RelationSystematicTerm {
 	id: RelationSystematicId;
@@ -38,24 +39,10 @@ export interface RelationBudgetRecord {
 	wesenheitRatio: number | null;
 }
 
-const termSchema = z.object({
-	id: z.enum(RELATION_SYSTEMATIC_IDS),
-	label: z.string(),
-	value: z.number().nullable(),
-	error: z.number().nonnegative(),
-	effect: z.object({ zero_point: z.number(), slope: z.number(), metallicity_term: z.number().nullable() })
-});
-
+/** The budget keys as frozen-content.ts defines them, read on their own from any version's content. */
 const budgetKeysSchema = z.object({
-	systematics: z.object({ terms: z.array(termSchema) }).optional(),
-	fit_quality: z
-		.object({
-			reduced_chi_square: z.number().nullable(),
-			degrees_of_freedom: z.number(),
-			covariance_scaled: z.boolean(),
-			errors_too_small: z.boolean()
-		})
-		.optional(),
+	systematics: systematicsSchema.optional(),
+	fit_quality: fitQualitySchema.optional(),
 	wesenheit_ratio: z.number().positive().nullable().optional()
 });
 
